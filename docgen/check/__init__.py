@@ -1,0 +1,1 @@
+"""Checks on solved results: requirements, ratings, hand estimates."""

@@ -1,0 +1,1 @@
+"""The analyses: operating point, response, noise, large signal, feedback, spread."""
