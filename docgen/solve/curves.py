@@ -1,0 +1,223 @@
+"""Reading a frequency response: midband, −3 dB corners, unity-gain frequency, anchored phase.
+
+Pure numpy/scipy functions over a log-spaced sweep; they know nothing about circuits.  Each
+corner is first bracketed between two sweep points and then found by root-finding
+(``scipy.optimize.brentq`` in log-frequency) on a callable that re-evaluates the response at any
+frequency, so the answer does not depend on the sweep density.  Without a callable the crossing is
+interpolated linearly in (log f, dB).
+
+Conventions (DEVELOPERS.md "Shared decisions"):
+
+- midband gain is the largest |H| over the sweep;
+- a corner is where the gain is 3.01 dB (a factor √2) below midband;
+- a corner outside the sweep, or one that cannot be measured honestly, is ``None`` with a reason;
+- the midband is *flat* when the gain stays within 1 dB of its largest value over at least one
+  octave (docgen's own criterion).  If it is not flat and the largest value sits at a sweep edge,
+  the gain is still changing there and the corners are not reported (the reason says to widen the
+  sweep); an interior peak that is not flat (a resonance) still gives corners 3.01 dB below the
+  peak, with a note;
+- the unity-gain frequency is the first frequency above midband where the gain falls through
+  0 dB;
+- phase is unwrapped over the sweep and shifted by whole turns so that the phase at midband lies
+  in (−180°, 180°].
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Callable
+from dataclasses import dataclass
+
+import numpy as np
+
+#: 20·log10(√2): the "−3 dB" drop in exact form.
+CORNER_DROP_DB = 20.0 * math.log10(math.sqrt(2.0))
+#: a midband is flat when the gain stays within this many dB of its maximum ...
+FLAT_WITHIN_DB = 1.0
+#: ... over at least this frequency ratio (one octave).
+FLAT_SPAN_RATIO = 2.0
+
+GainFunction = Callable[[np.ndarray], np.ndarray]
+
+
+@dataclass(frozen=True, slots=True)
+class Midband:
+    """The midband of a response.
+
+    :param index: sweep index of the largest gain.
+    :param gain_db: that gain.
+    :param freq_hz: its frequency.
+    :param flat: whether the gain stays within 1 dB of it over at least an octave.
+    :param at_edge: ``"start"``/``"stop"`` if the largest gain is the first/last sweep point.
+    :param note: a sentence for the reader when the midband is not flat, else ``None``.
+    """
+
+    index: int
+    gain_db: float
+    freq_hz: float
+    flat: bool
+    at_edge: str | None
+    note: str | None
+
+
+def magnitude_db(transfer: np.ndarray) -> np.ndarray:
+    """20·log10|H|, with −inf where H is exactly zero (no warning)."""
+    magnitude = np.abs(np.asarray(transfer))
+    with np.errstate(divide="ignore"):
+        return 20.0 * np.log10(magnitude)
+
+
+def anchored_phase_deg(transfer: np.ndarray, anchor_index: int) -> np.ndarray:
+    """Unwrapped phase in degrees, shifted by whole turns so that ``phase[anchor_index]`` lies
+    in (−180°, 180°]."""
+    phase = np.degrees(np.unwrap(np.angle(np.asarray(transfer))))
+    anchor = phase[anchor_index]
+    turns = math.ceil((anchor - 180.0) / 360.0)
+    # ceil keeps exactly +180° and moves exactly −180° up to +180°.
+    return phase - 360.0 * turns
+
+
+def find_midband(
+    freq: np.ndarray, gain_db: np.ndarray, evaluate_db: GainFunction | None = None
+) -> Midband:
+    """The largest gain of the sweep, whether it is flat, and a note when it is not.
+
+    With ``evaluate_db`` an interior maximum is refined between its neighbours (bounded Brent
+    search in log-frequency), so a sharp resonance is not under-read by a coarse sweep.
+    """
+    index = int(np.argmax(gain_db))
+    peak, peak_freq = float(gain_db[index]), float(freq[index])
+    if evaluate_db is not None and 0 < index < len(freq) - 1:
+        peak_freq, peak = _refine_peak(freq[index - 1], freq[index + 1], evaluate_db, peak_freq,
+                                       peak)
+    near = gain_db >= peak - FLAT_WITHIN_DB
+    low, high = index, index
+    while low > 0 and near[low - 1]:
+        low -= 1
+    while high < len(freq) - 1 and near[high + 1]:
+        high += 1
+    flat = freq[high] / freq[low] >= FLAT_SPAN_RATIO
+    at_edge = "start" if index == 0 else "stop" if index == len(freq) - 1 else None
+    note = None
+    if not flat and at_edge is not None:
+        trend = "falling" if at_edge == "start" else "rising"
+        note = (f"no flat midband in the sweep: the gain is still {trend} at the sweep {at_edge}; "
+                "the midband figure is the gain there (widen the sweep)")
+    elif not flat:
+        note = (f"no flat midband: the gain peaks at {peak_freq:.4g} Hz and stays within "
+                f"{FLAT_WITHIN_DB:g} dB of the peak for less than an octave; corners are measured "
+                "3.01 dB below the peak")
+    return Midband(index, peak, peak_freq, bool(flat), at_edge, note)
+
+
+def _refine_peak(
+    f_below: float, f_above: float, evaluate_db: GainFunction, f_sweep: float, g_sweep: float
+) -> tuple[float, float]:
+    """The maximum of the gain between two frequencies (never below the sweep's own value)."""
+    from scipy.optimize import minimize_scalar
+
+    found = minimize_scalar(
+        lambda log_f: -float(evaluate_db(np.array([10.0**log_f]))[0]),
+        bounds=(math.log10(f_below), math.log10(f_above)),
+        method="bounded",
+        options={"xatol": 1e-10},
+    )
+    if -found.fun > g_sweep:
+        return 10.0 ** float(found.x), float(-found.fun)
+    return f_sweep, g_sweep
+
+
+def crossing(
+    f_below: float,
+    f_above: float,
+    level_db: float,
+    gain_below_db: float,
+    gain_above_db: float,
+    evaluate_db: GainFunction | None = None,
+) -> float:
+    """The frequency between two sweep points where the gain equals ``level_db``.
+
+    The two points must bracket the level.  With ``evaluate_db`` (gain in dB at an array of
+    frequencies) the crossing is found by Brent's method in log-frequency; without it, by linear
+    interpolation in (log f, dB).
+    """
+    log_a, log_b = math.log10(f_below), math.log10(f_above)
+    if evaluate_db is None or not np.isfinite([gain_below_db, gain_above_db]).all():
+        fraction = (level_db - gain_below_db) / (gain_above_db - gain_below_db)
+        if not math.isfinite(fraction):
+            fraction = 0.5
+        return 10.0 ** (log_a + fraction * (log_b - log_a))
+    from scipy.optimize import brentq
+
+    def offset(log_f: float) -> float:
+        return float(evaluate_db(np.array([10.0**log_f]))[0]) - level_db
+
+    return 10.0 ** brentq(offset, log_a, log_b, xtol=1e-12, rtol=1e-12)
+
+
+def _walk(gain_db: np.ndarray, start: int, step: int, level_db: float) -> int | None:
+    """First index from ``start`` in direction ``step`` whose gain is below ``level_db``."""
+    index = start
+    while 0 <= index + step < len(gain_db):
+        index += step
+        if gain_db[index] < level_db:
+            return index
+    return None
+
+
+def find_corner(
+    freq: np.ndarray,
+    gain_db: np.ndarray,
+    midband: Midband,
+    side: str,
+    evaluate_db: GainFunction | None = None,
+    dc_gain_db: float | None = None,
+) -> tuple[float | None, str | None]:
+    """The low (``side="low"``) or high (``side="high"``) −3.01 dB corner, or ``None`` and why.
+
+    ``dc_gain_db`` (the gain at 0 Hz, ``None`` if unknown) lets a missing low corner be told
+    apart: a direct-coupled stage keeps its gain down to DC.
+    """
+    edge = "start" if side == "low" else "stop"
+    if not midband.flat and midband.at_edge is not None and midband.at_edge != edge:
+        return None, ("not measured: the gain is still changing at the sweep "
+                      f"{midband.at_edge}, so the midband is not known; widen the sweep")
+    level = midband.gain_db - CORNER_DROP_DB
+    step = -1 if side == "low" else 1
+    index = _walk(gain_db, midband.index, step, level)
+    if index is None:
+        if side == "low" and dc_gain_db is not None and dc_gain_db >= level:
+            return None, (f"no low corner: the stage is direct-coupled (gain at DC "
+                          f"{dc_gain_db:.3g} dB, within 3.01 dB of midband)")
+        limit = freq[0] if side == "low" else freq[-1]
+        where = "below the sweep start" if side == "low" else "above the sweep stop"
+        return None, f"{where} ({limit:.4g} Hz): the gain stays within 3.01 dB of midband there"
+    inner = index - step  # the neighbour on the midband side, at or above the level
+    low_i, high_i = sorted((index, inner))
+    f = crossing(freq[low_i], freq[high_i], level, gain_db[low_i], gain_db[high_i], evaluate_db)
+    return f, None
+
+
+def find_unity_gain(
+    freq: np.ndarray,
+    gain_db: np.ndarray,
+    midband: Midband,
+    evaluate_db: GainFunction | None = None,
+) -> tuple[float | None, str | None]:
+    """The first frequency above midband where the gain falls through 0 dB, or ``None`` and why."""
+    if midband.gain_db < 0.0:
+        return None, f"the gain never reaches 0 dB (midband {midband.gain_db:.3g} dB)"
+    index = _walk(gain_db, midband.index, 1, 0.0)
+    if index is None:
+        return None, f"above the sweep stop ({freq[-1]:.4g} Hz): the gain is still above 0 dB"
+    f = crossing(freq[index - 1], freq[index], 0.0, gain_db[index - 1], gain_db[index],
+                 evaluate_db)
+    return f, None
+
+
+def log_sweep(f_start: float, f_stop: float, points_per_decade: int) -> np.ndarray:
+    """Log-spaced frequencies from ``f_start`` to ``f_stop`` inclusive, ``points_per_decade``
+    per decade (at least two points)."""
+    decades = math.log10(f_stop / f_start)
+    count = max(2, int(math.ceil(decades * points_per_decade - 1e-9)) + 1)
+    return np.logspace(math.log10(f_start), math.log10(f_stop), count)
