@@ -126,8 +126,8 @@ SLOT_UNITS = {"freq": "Hz", "amplitude": "V"}
 _NAME = re.compile(r"[A-Za-z][A-Za-z0-9_]*\Z")
 
 
-class MetricError(ValueError):
-    """Text that is not a metric: the 1-based column (within the text), width, message, hint."""
+class TextError(ValueError):
+    """A problem in a short text: the 1-based column (within the text), width, message, hint."""
 
     def __init__(self, message: str, col: int, width: int = 1, hint: str | None = None):
         super().__init__(message)
@@ -135,6 +135,10 @@ class MetricError(ValueError):
         self.col = col
         self.width = width
         self.hint = hint
+
+
+class MetricError(TextError):
+    """Text that is not a metric."""
 
 
 @dataclass(frozen=True, slots=True)

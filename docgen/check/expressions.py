@@ -22,6 +22,7 @@ import re
 from collections.abc import Callable, Mapping
 from dataclasses import dataclass
 
+from docgen.metrics import TextError
 from docgen.units import QuantityError, parse_quantity
 
 MAX_LENGTH = 400
@@ -29,15 +30,8 @@ MAX_DEPTH = 40
 LIMIT = 1e100  # intermediate results beyond this are an error, not an overflow
 
 
-class ExpressionError(ValueError):
-    """A problem in an expression: 1-based column within the expression text, width, hint."""
-
-    def __init__(self, message: str, col: int, width: int = 1, hint: str | None = None):
-        super().__init__(message)
-        self.message = message
-        self.col = col
-        self.width = width
-        self.hint = hint
+class ExpressionError(TextError):
+    """A problem in an expression (column within the expression text)."""
 
 
 def _parallel(*values: float) -> float:
