@@ -12,7 +12,7 @@ from dataclasses import dataclass, field
 from types import MappingProxyType
 from typing import Literal
 
-from docgen.diagnostics import Span
+from docgen.diagnostics import Diagnostic, Span
 
 PageKind = Literal["design", "library", "note"]
 Status = Literal["draft", "review", "approved", "retired"]
@@ -169,6 +169,7 @@ class Design:
     :param kind: ``design`` (has a circuit), ``library`` (models only) or ``note``.
     :param source: the full text of the file (kept for downloads, diffs and live values).
     :param blocks: every fenced block in the page, in order (prose rendering uses them).
+    :param warnings: the reader's warnings for this page (errors raise instead).
     """
 
     path: str
@@ -180,6 +181,7 @@ class Design:
     requirements: tuple[Requirement, ...] = ()
     blocks: tuple[Block, ...] = ()
     source: str = ""
+    warnings: tuple[Diagnostic, ...] = ()
 
     def part(self, name: str) -> Part:
         """The part called ``name`` (``KeyError`` if none)."""

@@ -1,0 +1,200 @@
+"""The ``bench`` block: one ``key value`` per line, mapped onto :class:`docgen.design.Bench`.
+
+Keys other analyses need later (``common mode``, ``step`` ...) are kept raw in ``Bench.extra``;
+:data:`EXTRA_KEYS` is the one table of them, and a module that reads such a key adds its row.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Callable
+from dataclasses import fields as dataclass_fields
+from typing import Any
+
+from docgen.design import Bench, frozen_map
+from docgen.diagnostics import Collector, Span, did_you_mean
+from docgen.reader.circuit import report_quantity
+from docgen.reader.lexer import SourceLine
+from docgen.units import QuantityError, parse_percent, parse_temperature, parse_value
+
+#: bench keys kept as raw text in ``Bench.extra`` -> what they mean (for the docs).
+EXTRA_KEYS: dict[str, str] = {
+    "common mode": "a common-mode stimulus for the rejection analysis",
+    "loop": "where the feedback loop is broken for the loop-gain analysis",
+    "step": "the amplitude of the input step for the step response",
+    "amplitudes": "input amplitudes for the distortion sweep",
+}
+
+#: reads a value text into Bench fields.
+Reader = Callable[[str], dict[str, Any]]
+
+
+class BenchValueError(ValueError):
+    """A bench value that does not read; ``offset`` points into the value text."""
+
+    def __init__(self, message: str, hint: str | None = None, offset: int = 0, width: int = 0):
+        super().__init__(message)
+        self.message, self.hint, self.offset, self.width = message, hint, offset, width
+
+
+def _name(text: str) -> dict[str, Any]:
+    if len(text.split()) != 1:
+        raise BenchValueError("expected one name", "e.g. 'input VS'")
+    return {"value": text}
+
+
+def _positive(text: str, unit: str, what: str) -> float:
+    value = parse_value(text, unit, what).value
+    if not value > 0:
+        raise BenchValueError(f"{what} must be greater than zero")
+    return value
+
+
+def _span_of(text: str, unit: str, what: str) -> tuple[float, float]:
+    low_text, dots, high_text = text.partition("..")
+    if not dots:
+        raise BenchValueError(f"{what} is a range 'low .. high'", "e.g. '10 Hz .. 1 MHz'")
+    low, high = _positive(low_text, unit, what), _positive(high_text, unit, what)
+    if not low < high:
+        raise BenchValueError(f"{what}: the low end must be below the high end")
+    return low, high
+
+
+def _load(text: str) -> dict[str, Any]:
+    for bar in ("||", "‖"):
+        if bar in text:
+            resistance, _, capacitance = text.partition(bar)
+            return {"load_resistance": _positive(resistance, "Ω", "a load resistance"),
+                    "load_capacitance": _positive(capacitance, "F", "a load capacitance")}
+    return {"load_resistance": _positive(text, "Ω", "a load resistance")}
+
+
+def _frequencies(text: str) -> dict[str, Any]:
+    low, high = _span_of(text, "Hz", "the sweep")
+    return {"f_start": low, "f_stop": high}
+
+
+def _ambient(text: str) -> dict[str, Any]:
+    if "(" in text:
+        nominal_text, _, rest = text.partition("(")
+        if not rest.rstrip().endswith(")"):
+            raise BenchValueError("a range in brackets needs its ')'")
+        nominal = parse_temperature(nominal_text)
+        low, high = _temperature_range(rest.rstrip()[:-1])
+    elif ".." in text:
+        nominal = 25.0
+        low, high = _temperature_range(text)
+    else:
+        return {"ambient": parse_temperature(text)}
+    if not low <= nominal <= high:
+        raise BenchValueError("the nominal ambient lies outside the range",
+                              "write 'NOMINAL (LOW .. HIGH)', e.g. '40 °C (0 °C .. 85 °C)'")
+    return {"ambient": nominal, "ambient_range": (low, high)}
+
+
+def _temperature_range(text: str) -> tuple[float, float]:
+    low_text, dots, high_text = text.partition("..")
+    if not dots:
+        raise BenchValueError("a temperature range is 'low .. high'", "e.g. '-20 °C .. 60 °C'")
+    low, high = parse_temperature(low_text), parse_temperature(high_text)
+    if not low < high:
+        raise BenchValueError("the low end of the range must be below the high end")
+    return low, high
+
+
+def _integer(text: str, least: int, what: str) -> int:
+    if not text.strip().isdigit() or int(text) < least:
+        raise BenchValueError(f"{what} is a whole number of at least {least}")
+    return int(text)
+
+
+def _distribution(text: str) -> dict[str, Any]:
+    if text not in ("uniform", "normal"):
+        raise BenchValueError(f"unknown distribution '{text}'",
+                              did_you_mean(text, ["uniform", "normal"]) or "uniform or normal")
+    return {"distribution": text}
+
+
+def _distortion(text: str) -> dict[str, Any]:
+    limit = parse_percent(text)
+    if not 0 < limit < 1:
+        raise BenchValueError("a distortion limit lies between 0 % and 100 %")
+    return {"distortion_limit": limit}
+
+
+#: bench key -> (reader of its value, meaning) — the docs list this table.
+KEYS: dict[str, tuple[Reader, str]] = {
+    "input": (lambda t: {"input": _name(t)["value"]}, "the signal part driving the stage"),
+    "output": (lambda t: {"output": _name(t)["value"]}, "the net observed, against gnd"),
+    "load": (_load, "a resistor, or R || C, from the output to gnd in every analysis"),
+    "frequencies": (_frequencies, "the response sweep, 'low .. high'"),
+    "points per decade": (lambda t: {"points_per_decade": _integer(t, 2, "points per decade")},
+                          "resolution of the sweep"),
+    "noise band": (lambda t: {"noise_band": _span_of(t, "Hz", "the noise band")},
+                   "the band noise is integrated over"),
+    "ambient": (_ambient, "the nominal ambient temperature, optionally with a range"),
+    "boards": (lambda t: {"boards": _integer(t, 1, "boards")}, "tolerance-analysis samples"),
+    "seed": (lambda t: {"seed": _integer(t, 0, "the seed")}, "the tolerance-analysis seed"),
+    "distribution": (_distribution, "how tolerances are drawn: uniform or normal"),
+    "distortion limit": (_distortion, "the THD that bounds the output swing"),
+}
+
+
+def all_keys() -> list[str]:
+    """Every key a bench block accepts, longest first (for matching)."""
+    return sorted([*KEYS, *EXTRA_KEYS], key=lambda k: (-len(k.split()), k))
+
+
+def read_bench(lines: list[SourceLine], collector: Collector) -> Bench:
+    """The bench block's settings over :class:`Bench` defaults."""
+    values: dict[str, Any] = {}
+    extra: dict[str, str] = {}
+    spans: dict[str, Span] = {}
+    for line in lines:
+        if line.is_blank:
+            continue
+        _read_line(line, collector, values, extra, spans)
+    known = {f.name for f in dataclass_fields(Bench)}
+    settings = {k: v for k, v in values.items() if k in known}
+    return Bench(**settings, extra=frozen_map(extra), spans=frozen_map(spans))
+
+
+def _read_line(line: SourceLine, collector: Collector, values: dict[str, Any],
+               extra: dict[str, str], spans: dict[str, Span]) -> None:
+    words = line.words()
+    key = _match_key([w.text for w in words])
+    if key is None:
+        span = Span(line.number, words[0].col, len(words[0].text))
+        guess = " ".join(w.text for w in words[:2])
+        hint = did_you_mean(guess, all_keys()) or did_you_mean(words[0].text, all_keys())
+        collector.add(span, f"unknown bench key '{words[0].text}'",
+                      hint=hint or f"bench keys: {', '.join(sorted(all_keys()))}")
+        return
+    count = len(key.split())
+    key_span = Span(line.number, words[0].col, words[count - 1].end - words[0].col)
+    if key in spans:
+        collector.add(key_span, f"bench key '{key}' is given twice")
+        return
+    if len(words) == count:
+        collector.add(key_span, f"bench key '{key}' needs a value")
+        return
+    value_col = words[count].col
+    text = line.body[value_col - line.indent - 1:].strip()
+    value_span = Span(line.number, value_col, len(text))
+    spans[key] = value_span
+    if key in EXTRA_KEYS:
+        extra[key] = text
+        return
+    try:
+        values.update(KEYS[key][0](text))
+    except QuantityError as exc:
+        report_quantity(collector, value_span, exc)
+    except BenchValueError as exc:
+        collector.add(value_span, exc.message, hint=exc.hint)
+
+
+def _match_key(words: list[str]) -> str | None:
+    for key in all_keys():
+        parts = key.split()
+        if words[: len(parts)] == parts:
+            return key
+    return None

@@ -1,0 +1,371 @@
+"""The ``circuit`` block: ``NAME KIND [VALUE] [TOLERANCE] [RATING] [key=value ...] : NETS``."""
+
+from __future__ import annotations
+
+import math
+import re
+from collections.abc import Collection
+
+from docgen.design import Part, frozen_map
+from docgen.diagnostics import Collector, Span, did_you_mean
+from docgen.kinds import KINDS, KindSpec, connects_by_position
+from docgen.reader.lexer import Field, SourceLine, Word, group_fields, read_lines
+from docgen.units import QuantityError, parse_percent, parse_ppm, parse_value
+
+PART_NAME = re.compile(r"^[A-Za-z][A-Za-z0-9_]*$")
+NET_NAME = re.compile(r"^[A-Za-z0-9_][A-Za-z0-9_.+\-]*$")
+MODEL_NAME = re.compile(r"^[A-Za-z][A-Za-z0-9_.+\-]*$")
+_POSITIVE_KINDS = {"resistor", "capacitor", "inductor"}
+_AMPLITUDE = {"rms": math.sqrt(2.0), "pp": 0.5}
+
+
+def report_quantity(collector: Collector, span: Span, error: QuantityError) -> None:
+    """Record a :class:`QuantityError` found in the text at ``span``."""
+    col = span.col + error.offset
+    width = error.width or span.width
+    if col + width > span.col + span.width:  # keep the caret inside the field
+        col, width = span.col, span.width
+    collector.add(Span(span.line, col, width), error.message, hint=error.hint)
+
+
+def read_circuit(lines: list[SourceLine], collector: Collector) -> list[Part]:
+    """Every part line of a circuit block (errors go to ``collector``)."""
+    return read_lines(lines, lambda line: _read_part(line, collector))
+
+
+def check_head(line: int, name: Word, kind: Word, collector: Collector, pattern: re.Pattern,
+               kinds: Collection[str], noun: str) -> bool | None:
+    """Check a line's NAME and KIND words: None if the kind is unknown, else whether the
+    name is well formed (both problems are reported)."""
+    ok = bool(pattern.match(name.text))
+    if not ok:
+        collector.add(name.span(line), f"'{name.text}' is not a {noun} name",
+                      hint="a name starts with a letter")
+    if kind.text not in kinds:
+        collector.add(kind.span(line), f"unknown {noun} kind '{kind.text}'",
+                      hint=did_you_mean(kind.text, kinds) or f"one of {', '.join(kinds)}")
+        return None
+    return ok
+
+
+class _PartBuilder:
+    """The fields of one part while its line is read."""
+
+    def __init__(self, line: SourceLine, collector: Collector, name: Word, kind: str):
+        self.line = line
+        self.collector = collector
+        self.name = name
+        self.kind = kind
+        self.spec: KindSpec = KINDS[kind]
+        self.value: float | None = None
+        self.value_text: str | None = None
+        self.model: str | None = None
+        self.tolerance: float | None = None
+        self.rating: float | None = None
+        self.params: dict[str, float] = {}
+        self.spans: dict[str, Span] = {}
+        self.ok = True
+
+    def error(self, span: Span, message: str, hint: str | None = None) -> None:
+        self.ok = False
+        self.collector.add(span, message, hint=hint)
+
+    def quantity_error(self, span: Span, error: QuantityError) -> None:
+        self.ok = False
+        report_quantity(self.collector, span, error)
+
+
+def _read_part(line: SourceLine, collector: Collector) -> Part | None:
+    colon = line.body.find(":")
+    words = line.words(0, colon if colon >= 0 else None)
+    if colon < 0:
+        collector.add(line.span_at(len(line.body)), "a part line needs ':' before its "
+                      "connections", hint="e.g. 'R1 resistor 4k7 : a b'")
+        return None
+    if len(words) < 2:
+        collector.add(line.span_at(0, len(line.body.strip()) or 1),
+                      "a part line starts with a name and a kind",
+                      hint="e.g. 'R1 resistor 4k7 : a b'")
+        return None
+    name, kind_word = words[0], words[1]
+    ok = check_head(line.number, name, kind_word, collector, PART_NAME, KINDS, "part")
+    if ok is None:
+        return None
+    builder = _PartBuilder(line, collector, name, kind_word.text)
+    builder.spans["kind"] = Span(line.number, kind_word.col, len(kind_word.text))
+    _read_fields(builder, group_fields(words[2:]))
+    terminals = _read_connections(builder, line.words(colon + 1), line.span_at(colon))
+    if not (ok and builder.ok) or terminals is None:
+        return None
+    return Part(name.text, builder.kind, builder.value, builder.value_text, builder.model,
+                builder.tolerance, builder.rating, frozen_map(builder.params), terminals,
+                Span(line.number, name.col, len(name.text)), frozen_map(builder.spans))
+
+
+def _read_fields(builder: _PartBuilder, fields: list[Field]) -> None:
+    positional = [f for f in fields if "=" not in f.words[0].text]
+    for field in fields:
+        if "=" in field.words[0].text:
+            _read_param(builder, field)
+    if builder.spec.value_unit is None:
+        _read_model(builder, positional)
+    else:
+        _read_values(builder, positional)
+
+
+def _read_model(builder: _PartBuilder, fields: list[Field]) -> None:
+    line = builder.line.number
+    kind = builder.kind
+    if not fields:
+        builder.error(builder.spans["kind"], f"a {kind} part needs a model name",
+                      hint=f"e.g. 'generic-{builder.spec.model_kind}', or a model of your own "
+                      "in a models block")
+        return
+    first, *rest = fields
+    if not MODEL_NAME.match(first.text) or len(first.words) > 1:
+        builder.error(first.span(line), f"'{first.text}' is not a model name",
+                      hint="a model name starts with a letter")
+        return
+    builder.model = first.text
+    builder.spans["model"] = first.span(line)
+    for extra in rest:
+        builder.error(extra.span(line), f"unexpected '{extra.text}' after the model name",
+                      hint=f"a {kind} takes only a model name before the ':'")
+
+
+def _read_values(builder: _PartBuilder, fields: list[Field]) -> None:
+    line = builder.line.number
+    if not fields:
+        builder.error(builder.spans["kind"], f"a {builder.kind} part needs a value",
+                      hint=f"e.g. '{_example(builder.kind)}'")
+        return
+    _read_main_value(builder, fields[0])
+    rest = fields[1:]
+    if builder.kind == "signal":
+        if not rest or rest[0].text.endswith("%"):
+            builder.error(fields[0].span(line), "a signal needs a frequency after its amplitude",
+                          hint="e.g. 'VS signal 10 mV 1 kHz : in gnd'")
+        else:
+            _read_frequency(builder, rest[0])
+            rest = rest[1:]
+    for field in rest:
+        if field.text.endswith("%"):
+            _read_tolerance(builder, field)
+        else:
+            _read_rating(builder, field)
+
+
+def _example(kind: str) -> str:
+    unit = KINDS[kind].value_unit
+    return {"Ω": "4k7", "F": "100n", "H": "10m", "A": "1 mA"}.get(unit or "", f"1 {unit}")
+
+
+def _read_main_value(builder: _PartBuilder, field: Field) -> None:
+    line = builder.line.number
+    span = field.span(line)
+    words = [w.text for w in field.words]
+    factor = 1.0
+    if builder.kind == "signal" and len(words) > 1 and words[-1] in _AMPLITUDE:
+        factor = _AMPLITUDE[words[-1]]
+        words = words[:-1]
+    text = " ".join(words)
+    what = f"a {builder.kind}'s value"
+    try:
+        value = parse_value(text, builder.spec.value_unit or "", what).value * factor
+    except QuantityError as exc:
+        builder.quantity_error(span, exc)
+        return
+    builder.spans["value"] = span
+    if builder.kind in _POSITIVE_KINDS and not value > 0:
+        builder.error(span, f"a {builder.kind}'s value must be greater than zero")
+    elif builder.kind == "signal" and value < 0:
+        builder.error(span, "a signal's amplitude cannot be negative",
+                      hint="swap the two nets to invert it")
+    builder.value = value
+    builder.value_text = field.text
+
+
+def _read_frequency(builder: _PartBuilder, field: Field) -> None:
+    span = field.span(builder.line.number)
+    try:
+        frequency = parse_value(field.text, "Hz", "a signal's frequency").value
+    except QuantityError as exc:
+        builder.quantity_error(span, exc)
+        return
+    if not frequency > 0:
+        builder.error(span, "a signal's frequency must be greater than zero")
+    builder.params["frequency"] = frequency
+    builder.spans["frequency"] = span
+
+
+def _read_tolerance(builder: _PartBuilder, field: Field) -> None:
+    span = field.span(builder.line.number)
+    if builder.tolerance is not None:
+        builder.error(span, "a second tolerance", hint="write one tolerance per part")
+        return
+    try:
+        tolerance = parse_percent(field.text)
+    except QuantityError as exc:
+        builder.quantity_error(span, exc)
+        return
+    if not 0 <= tolerance < 1:
+        builder.error(span, "a tolerance lies between 0 % and 100 %")
+    builder.tolerance = tolerance
+    builder.spans["tolerance"] = span
+
+
+def _read_rating(builder: _PartBuilder, field: Field) -> None:
+    span = field.span(builder.line.number)
+    unit = builder.spec.rating_unit
+    if unit is None:
+        builder.error(span, f"unexpected '{field.text}': a {builder.kind} has no rating",
+                      hint=_rating_hint(builder.kind))
+        return
+    if builder.rating is not None:
+        builder.error(span, f"unexpected '{field.text}' after the rating")
+        return
+    if len(field.words) == 1 and field.text[-1].isdigit():
+        builder.error(span, f"a rating is written with its unit ({unit})",
+                      hint=f"e.g. '{field.text} {unit}'")
+        return
+    try:
+        rating = parse_value(field.text, unit, f"a {builder.kind}'s rating").value
+    except QuantityError as exc:
+        builder.quantity_error(span, exc)
+        return
+    if not rating > 0:
+        builder.error(span, "a rating must be greater than zero")
+    builder.rating = rating
+    builder.spans["rating"] = span
+
+
+def _rating_hint(kind: str) -> str | None:
+    if kind == "signal":
+        return "a signal is 'AMPLITUDE [rms|pp] FREQUENCY [source=R]'"
+    return "settings are written as key=value"
+
+
+def _read_param(builder: _PartBuilder, field: Field) -> None:
+    line = builder.line.number
+    first = field.words[0]
+    key, _, _ = first.text.partition("=")
+    text = field.text.split("=", 1)[1]
+    key_span = Span(line, first.col, max(1, len(key)))
+    allowed = builder.spec.params
+    if key not in allowed:
+        hint = did_you_mean(key, allowed) or (
+            f"a {builder.kind} takes {', '.join(allowed)}" if allowed
+            else f"a {builder.kind} takes no settings")
+        builder.error(key_span, f"unknown setting '{key}' for a {builder.kind}", hint=hint)
+        return
+    if key in builder.params:
+        builder.error(key_span, f"'{key}' is set twice")
+        return
+    value_span = Span(line, first.col + len(key) + 1,
+                      max(1, field.words[-1].end - first.col - len(key) - 1))
+    value = _param_value(builder, key, allowed[key], text, value_span)
+    if value is not None:
+        builder.params[key] = value
+        builder.spans[key] = key_span
+
+
+def _param_value(builder: _PartBuilder, key: str, unit: str, text: str,
+                 span: Span) -> float | None:
+    if unit == "flag":
+        if text in ("yes", "no"):
+            return 1.0 if text == "yes" else 0.0
+        builder.error(span, f"'{key}' is 'yes' or 'no', not '{text}'")
+        return None
+    try:
+        if unit == "ppm/K":
+            return parse_ppm(text)
+        value = parse_value(text, unit, f"'{key}'").value
+    except QuantityError as exc:
+        builder.quantity_error(span, exc)
+        return None
+    if key in ("resistance", "source") and value < 0:
+        builder.error(span, f"'{key}' cannot be negative")
+        return None
+    return value
+
+
+def _read_connections(builder: _PartBuilder, words: list[Word],
+                      colon: Span) -> tuple[tuple[str, str], ...] | None:
+    terminals = builder.spec.terminals
+    if connects_by_position(builder.kind):
+        return _positional(builder, words, colon, terminals)
+    return _named(builder, words, colon, terminals)
+
+
+def _net_ok(builder: _PartBuilder, net: str, span: Span) -> bool:
+    if NET_NAME.match(net):
+        return True
+    builder.error(span, f"'{net}' is not a net name",
+                  hint="a net name is a word of letters, digits, '_', '.', '+' or '-'")
+    return False
+
+
+def _positional(builder: _PartBuilder, words: list[Word], colon: Span,
+                terminals: tuple[str, ...]) -> tuple[tuple[str, str], ...] | None:
+    line = builder.line.number
+    named = [w for w in words if "=" in w.text]
+    if named:
+        builder.error(Span(line, named[0].col, len(named[0].text)),
+                      f"a {builder.kind} connects by position: list its {len(terminals)} nets",
+                      hint=f"e.g. '{builder.name.text} ... : a b'")
+        return None
+    if len(words) != len(terminals):
+        where = (Span(line, words[len(terminals)].col, len(words[len(terminals)].text))
+                 if len(words) > len(terminals) else colon)
+        builder.error(where, f"a {builder.kind} connects to {len(terminals)} nets, "
+                      f"not {len(words)}", hint=_order_hint(builder.kind))
+        return None
+    pairs = []
+    for terminal, word in zip(terminals, words, strict=True):
+        span = Span(line, word.col, len(word.text))
+        if not _net_ok(builder, word.text, span):
+            return None
+        builder.spans[f"net:{terminal}"] = span
+        pairs.append((terminal, word.text))
+    return tuple(pairs)
+
+
+def _order_hint(kind: str) -> str:
+    return {"diode": "anode net first, then cathode net",
+            "supply": "positive net first, then negative net",
+            "signal": "positive net first, then negative net",
+            "current": "the current flows from the first net to the second"}.get(
+        kind, "the two nets the part sits between")
+
+
+def _named(builder: _PartBuilder, words: list[Word], colon: Span,
+           terminals: tuple[str, ...]) -> tuple[tuple[str, str], ...] | None:
+    line = builder.line.number
+    example = " ".join(f"{t}=..." for t in terminals)
+    found: dict[str, str] = {}
+    for word in words:
+        span = Span(line, word.col, len(word.text))
+        terminal, eq, net = word.text.partition("=")
+        if not eq:
+            builder.error(span, f"a {builder.kind} names each terminal: '{example}'")
+            continue
+        if terminal not in terminals:
+            builder.error(Span(line, word.col, max(1, len(terminal))),
+                          f"a {builder.kind} has no terminal '{terminal}'",
+                          hint=did_you_mean(terminal, terminals, cutoff=0.3)
+                          or f"its terminals are {', '.join(terminals)}")
+            continue
+        if terminal in found:
+            builder.error(span, f"terminal '{terminal}' is connected twice")
+            continue
+        net_span = Span(line, word.col + len(terminal) + 1, max(1, len(net)))
+        if _net_ok(builder, net, net_span):
+            found[terminal] = net
+            builder.spans[f"net:{terminal}"] = net_span
+    missing = [t for t in terminals if t not in found]
+    if missing and builder.ok:
+        builder.error(colon, f"{builder.name.text} leaves terminal(s) {', '.join(missing)} "
+                      "unconnected", hint=f"a {builder.kind} is connected as '{example}'")
+    if not builder.ok:
+        return None
+    return tuple((t, found[t]) for t in terminals)
