@@ -137,6 +137,11 @@ def _walk(node: tuple):
 CONSTANTS = ("VT", "pi")
 
 
+def metrics_in(estimate: Estimate) -> list[Metric]:
+    """The metrics an estimate's expression reads in ``[...]``."""
+    return [parse_metric(node[1]) for node in _walk(estimate.tree) if node[0] == "metric"]
+
+
 def _check_names(design: Design, library: Mapping[str, ModelDef], tree: tuple) -> None:
     names = {p.name: p for p in design.parts}
     for node in _walk(tree):
