@@ -88,7 +88,7 @@ def load_record(root: str | Path, library_roots: Iterable[str | Path] = ()) -> R
     ``library_roots`` lets a single design file see the team's library pages kept elsewhere.
     """
     files = page_files(root)
-    extra = [f for r in library_roots for f in page_files(r) if f not in files]
+    extra = sorted({f for r in library_roots for f in page_files(r)} - set(files))
     pages, diagnostics = _read_all(files)
     extra_pages, extra_diagnostics = _read_all(extra)
     for path, items in extra_diagnostics.items():  # broken library pages still get reported

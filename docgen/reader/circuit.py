@@ -19,6 +19,11 @@ _POSITIVE_KINDS = {"resistor", "capacitor", "inductor"}
 _AMPLITUDE = {"rms": math.sqrt(2.0), "pp": 0.5}
 
 
+def article(kind: str) -> str:
+    """``kind`` with its indefinite article ("an npn", "a resistor")."""
+    return f"{'an' if kind[0] in 'aeioun' else 'a'} {kind}"
+
+
 def report_quantity(collector: Collector, span: Span, error: QuantityError) -> None:
     """Record a :class:`QuantityError` found in the text at ``span``."""
     col = span.col + error.offset
@@ -117,7 +122,7 @@ def _read_model(builder: _PartBuilder, fields: list[Field]) -> None:
     line = builder.line.number
     kind = builder.kind
     if not fields:
-        builder.error(builder.spans["kind"], f"a {kind} part needs a model name",
+        builder.error(builder.spans["kind"], f"{article(kind)} part needs a model name",
                       hint=f"e.g. 'generic-{builder.spec.model_kind}', or a model of your own "
                       "in a models block")
         return
@@ -130,13 +135,13 @@ def _read_model(builder: _PartBuilder, fields: list[Field]) -> None:
     builder.spans["model"] = first.span(line)
     for extra in rest:
         builder.error(extra.span(line), f"unexpected '{extra.text}' after the model name",
-                      hint=f"a {kind} takes only a model name before the ':'")
+                      hint=f"{article(kind)} takes only a model name before the ':'")
 
 
 def _read_values(builder: _PartBuilder, fields: list[Field]) -> None:
     line = builder.line.number
     if not fields:
-        builder.error(builder.spans["kind"], f"a {builder.kind} part needs a value",
+        builder.error(builder.spans["kind"], f"{article(builder.kind)} part needs a value",
                       hint=f"e.g. '{_example(builder.kind)}'")
         return
     _read_main_value(builder, fields[0])
@@ -169,7 +174,7 @@ def _read_main_value(builder: _PartBuilder, field: Field) -> None:
         factor = _AMPLITUDE[words[-1]]
         words = words[:-1]
     text = " ".join(words)
-    what = f"a {builder.kind}'s value"
+    what = f"{article(builder.kind)}'s value"
     try:
         value = parse_value(text, builder.spec.value_unit or "", what).value * factor
     except QuantityError as exc:
@@ -177,7 +182,7 @@ def _read_main_value(builder: _PartBuilder, field: Field) -> None:
         return
     builder.spans["value"] = span
     if builder.kind in _POSITIVE_KINDS and not value > 0:
-        builder.error(span, f"a {builder.kind}'s value must be greater than zero")
+        builder.error(span, f"{article(builder.kind)}'s value must be greater than zero")
     elif builder.kind == "signal" and value < 0:
         builder.error(span, "a signal's amplitude cannot be negative",
                       hint="swap the two nets to invert it")
@@ -218,7 +223,7 @@ def _read_rating(builder: _PartBuilder, field: Field) -> None:
     span = field.span(builder.line.number)
     unit = builder.spec.rating_unit
     if unit is None:
-        builder.error(span, f"unexpected '{field.text}': a {builder.kind} has no rating",
+        builder.error(span, f"unexpected '{field.text}': {article(builder.kind)} has no rating",
                       hint=_rating_hint(builder.kind))
         return
     if builder.rating is not None:
@@ -229,7 +234,7 @@ def _read_rating(builder: _PartBuilder, field: Field) -> None:
                       hint=f"e.g. '{field.text} {unit}'")
         return
     try:
-        rating = parse_value(field.text, unit, f"a {builder.kind}'s rating").value
+        rating = parse_value(field.text, unit, f"{article(builder.kind)}'s rating").value
     except QuantityError as exc:
         builder.quantity_error(span, exc)
         return
@@ -254,9 +259,9 @@ def _read_param(builder: _PartBuilder, field: Field) -> None:
     allowed = builder.spec.params
     if key not in allowed:
         hint = did_you_mean(key, allowed) or (
-            f"a {builder.kind} takes {', '.join(allowed)}" if allowed
-            else f"a {builder.kind} takes no settings")
-        builder.error(key_span, f"unknown setting '{key}' for a {builder.kind}", hint=hint)
+            f"{article(builder.kind)} takes {', '.join(allowed)}" if allowed
+            else f"{article(builder.kind)} takes no settings")
+        builder.error(key_span, f"unknown setting '{key}' for {article(builder.kind)}", hint=hint)
         return
     if key in builder.params:
         builder.error(key_span, f"'{key}' is set twice")
@@ -311,13 +316,14 @@ def _positional(builder: _PartBuilder, words: list[Word], colon: Span,
     named = [w for w in words if "=" in w.text]
     if named:
         builder.error(Span(line, named[0].col, len(named[0].text)),
-                      f"a {builder.kind} connects by position: list its {len(terminals)} nets",
+                      f"{article(builder.kind)} connects by position: "
+                      f"list its {len(terminals)} nets",
                       hint=f"e.g. '{builder.name.text} ... : a b'")
         return None
     if len(words) != len(terminals):
         where = (Span(line, words[len(terminals)].col, len(words[len(terminals)].text))
                  if len(words) > len(terminals) else colon)
-        builder.error(where, f"a {builder.kind} connects to {len(terminals)} nets, "
+        builder.error(where, f"{article(builder.kind)} connects to {len(terminals)} nets, "
                       f"not {len(words)}", hint=_order_hint(builder.kind))
         return None
     pairs = []
@@ -347,11 +353,11 @@ def _named(builder: _PartBuilder, words: list[Word], colon: Span,
         span = Span(line, word.col, len(word.text))
         terminal, eq, net = word.text.partition("=")
         if not eq:
-            builder.error(span, f"a {builder.kind} names each terminal: '{example}'")
+            builder.error(span, f"{article(builder.kind)} names each terminal: '{example}'")
             continue
         if terminal not in terminals:
             builder.error(Span(line, word.col, max(1, len(terminal))),
-                          f"a {builder.kind} has no terminal '{terminal}'",
+                          f"{article(builder.kind)} has no terminal '{terminal}'",
                           hint=did_you_mean(terminal, terminals, cutoff=0.3)
                           or f"its terminals are {', '.join(terminals)}")
             continue
@@ -365,7 +371,7 @@ def _named(builder: _PartBuilder, words: list[Word], colon: Span,
     missing = [t for t in terminals if t not in found]
     if missing and builder.ok:
         builder.error(colon, f"{builder.name.text} leaves terminal(s) {', '.join(missing)} "
-                      "unconnected", hint=f"a {builder.kind} is connected as '{example}'")
+                      "unconnected", hint=f"{article(builder.kind)} is connected as '{example}'")
     if not builder.ok:
         return None
     return tuple((t, found[t]) for t in terminals)

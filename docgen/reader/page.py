@@ -94,14 +94,16 @@ def _read(text: str, file_lines: list[str], path: str, collector: Collector) -> 
     for extra in circuits[1:]:
         collector.add(Span(extra.fence_line, 1, 3), "a second circuit block: a design page "
                       "has exactly one", hint="put each design in its own file")
+    before = len(collector.errors)
     parts: list[Part] = read_circuit(circuits[0].lines, collector) if circuits else []
+    complete = len(collector.errors) == before
     models: list[ModelDef] = []
     for block in models_blocks:
         models.extend(read_models(block.lines, collector, path))
     bench = _bench(blocks, kind, collector)
     requirements = _requirements(blocks, kind, collector)
     if kind == "design":
-        _design_checks(header, parts, bench, circuits[0], collector)
+        _design_checks(header, parts, bench, circuits[0], collector, complete)
     report_duplicates(models, "model name", collector)
     return Design(
         path=path, kind=kind, header=header, parts=tuple(parts), models=tuple(models),
@@ -148,12 +150,12 @@ def _requirements(blocks: list[FoundBlock], kind: str,
 
 
 def _design_checks(header: Header, parts: list[Part], bench: Bench, circuit: FoundBlock,
-                   collector: Collector) -> None:
+                   collector: Collector, complete: bool) -> None:
     if header.title is None:
         collector.add(Span(1, 1), "a design page needs a title",
                       hint="start the file with a header: '---', 'title: ...', '---'")
     fence = Span(circuit.fence_line, 1, 3)
     if not parts and not collector.errors:
         collector.add(fence, "the circuit block has no parts")
-    check_wiring(parts, bench, collector, fence)
+    check_wiring(parts, bench, collector, fence, complete)
 

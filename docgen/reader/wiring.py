@@ -10,10 +10,16 @@ from docgen.kinds import GROUND
 
 
 def check_wiring(parts: list[Part], bench: Bench, collector: Collector,
-                 circuit_span: Span) -> None:
-    """Duplicate names, parts on one net, nets on one terminal, a missing ``gnd``, the bench."""
+                 circuit_span: Span, complete: bool = True) -> None:
+    """Duplicate names, parts on one net, nets on one terminal, a missing ``gnd``, the bench.
+
+    When some part lines could not be read (``complete`` false), the net checks are skipped:
+    they would only repeat the first error in other words.
+    """
     report_duplicates(parts, "part name", collector)
     _shorted(parts, collector)
+    if not complete:
+        return
     _dangling(parts, bench, collector)
     nets = {net for part in parts for net in part.nets}
     if parts and GROUND not in nets:

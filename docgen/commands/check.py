@@ -1,0 +1,138 @@
+"""``docgen check [PATHS]``: read every design, print every diagnostic, exit 0 clean / 2 errors.
+
+Structure for later extension: :func:`load` reads the record(s) and returns a
+:class:`CheckRun`; :func:`check_designs` is the one place where each readable design is
+checked further (requirement verdicts add to it and may return exit code 1); :func:`run` prints.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import sys
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import Any
+
+from docgen.design import Design
+from docgen.diagnostics import Diagnostic, Span
+from docgen.record import Record, load_record, page_files
+
+DEFAULT_ROOT = "designs"
+
+
+@dataclass
+class CheckRun:
+    """What ``docgen check`` found: the records read and every diagnostic.
+
+    :param records: one record per path argument.
+    :param diagnostics: every diagnostic of every file, by path then position.
+    :param files: how many Markdown files were read.
+    :param reports: per-design results added by :func:`check_designs` (JSON-ready dicts).
+    """
+
+    records: list[Record]
+    diagnostics: list[Diagnostic]
+    files: int
+    reports: list[dict[str, Any]] = field(default_factory=list)
+
+    @property
+    def designs(self) -> list[tuple[Record, Design]]:
+        """Every design that read without errors, with the record it belongs to."""
+        return [(record, design) for record in self.records for design in record.designs]
+
+    @property
+    def errors(self) -> int:
+        """How many error-level diagnostics."""
+        return sum(d.severity == "error" for d in self.diagnostics)
+
+    @property
+    def warnings(self) -> int:
+        """How many warnings."""
+        return sum(d.severity == "warning" for d in self.diagnostics)
+
+
+def add_arguments(parser: argparse.ArgumentParser) -> None:
+    """The command's options."""
+    parser.add_argument("paths", nargs="*", metavar="PATH",
+                        help=f"design files or folders (default: {DEFAULT_ROOT}/)")
+    parser.add_argument("--library", action="append", default=None, metavar="FOLDER",
+                        help="a folder of library pages to use when checking single files "
+                        f"(default: {DEFAULT_ROOT}/ if it exists); may be repeated")
+    parser.add_argument("--json", action="store_true", help="print one JSON document")
+
+
+def load(paths: list[str], library: list[str] | None = None) -> CheckRun:
+    """Read every page under ``paths``; library pages also come from ``library`` folders."""
+    paths = paths or [DEFAULT_ROOT]
+    if library is None:
+        library = [DEFAULT_ROOT] if Path(DEFAULT_ROOT).is_dir() else []
+    records: list[Record] = []
+    missing: list[Diagnostic] = []
+    files = 0
+    for path in paths:
+        if not Path(path).exists():
+            missing.append(Diagnostic(path, Span(1, 1), "error", "no such file or folder"))
+            continue
+        roots = library + ([str(Path(path).parent)] if Path(path).is_file() else [])
+        records.append(load_record(path, roots))
+        files += len(page_files(path))
+    diagnostics = missing + [d for r in records for d in r.all_diagnostics]
+    return CheckRun(records, _unique(diagnostics), files)
+
+
+def _unique(diagnostics: list[Diagnostic]) -> list[Diagnostic]:
+    """Each diagnostic once (a library page seen from two records reports once)."""
+    seen: dict[tuple, Diagnostic] = {}
+    for d in diagnostics:
+        seen.setdefault((d.path, d.line, d.col, d.severity, d.message), d)
+    return list(seen.values())
+
+
+def check_designs(check_run: CheckRun, args: argparse.Namespace) -> int:
+    """Check each readable design further; return the exit code this adds (0 or 1).
+
+    The first version checks nothing beyond reading.  Requirement verdicts extend this.
+    """
+    for _record, design in check_run.designs:
+        check_run.reports.append({"path": design.path, "title": design.header.title,
+                                  "status": design.header.status})
+    return 0
+
+
+def run(args: argparse.Namespace) -> int:
+    """Read, check, print; exit 2 on input errors, else the code from :func:`check_designs`."""
+    check_run = load(list(args.paths), args.library)
+    code = check_designs(check_run, args)
+    if check_run.errors:
+        code = 2
+    if args.json:
+        print(json.dumps(_json(check_run, code), indent=2, ensure_ascii=False))
+    else:
+        for d in check_run.diagnostics:
+            print(d.render(), end="\n\n")
+        print(summary(check_run))
+    sys.stdout.flush()
+    return code
+
+
+def summary(check_run: CheckRun) -> str:
+    """One line: files read, designs, errors and warnings."""
+    designs = len(check_run.designs)
+
+    def count(n: int, word: str) -> str:
+        return f"{n} {word}{'' if n == 1 else 's'}"
+
+    return (f"checked {count(check_run.files, 'file')} ({count(designs, 'readable design')}): "
+            f"{count(check_run.errors, 'error')}, {count(check_run.warnings, 'warning')}")
+
+
+def _json(check_run: CheckRun, code: int) -> dict[str, Any]:
+    return {
+        "files": check_run.files,
+        "errors": check_run.errors,
+        "warnings": check_run.warnings,
+        "exit_code": code,
+        "diagnostics": [d.to_json() for d in check_run.diagnostics],
+        "designs": check_run.reports,
+    }
