@@ -8,8 +8,9 @@ for the content-based cache key.
 
 from __future__ import annotations
 
-from collections.abc import Iterable, Mapping
+from collections.abc import Callable, Iterable, Iterator, Mapping
 from dataclasses import dataclass, field
+from functools import partial
 from importlib import resources
 from pathlib import Path
 
@@ -89,27 +90,47 @@ def load_record(root: str | Path, library_roots: Iterable[str | Path] = ()) -> R
     """
     files = page_files(root)
     extra = sorted({f for r in library_roots for f in page_files(r)} - set(files))
-    pages, diagnostics = _read_all(files)
-    extra_pages, extra_diagnostics = _read_all(extra)
+    pages, diagnostics = _read_all(_file_readers(files))
+    extra_pages, extra_diagnostics = _read_all(_file_readers(extra))
     for path, items in extra_diagnostics.items():  # broken library pages still get reported
         diagnostics.setdefault(path, items)
+    return _assemble(str(root), pages, extra_pages, diagnostics)
+
+
+def load_texts(root: str, texts: Mapping[str, str]) -> Record:
+    """A record from page texts keyed by path, read exactly as :func:`load_record` reads files.
+
+    For pages that are not files on disk, such as a folder at a git revision (the history).
+    """
+    readers = ((path, partial(read_text, texts[path], path)) for path in sorted(texts))
+    pages, diagnostics = _read_all(readers)
+    return _assemble(root, pages, [], diagnostics)
+
+
+def _assemble(root: str, pages: list[Design], extra_pages: list[Design],
+              diagnostics: dict[str, tuple[Diagnostic, ...]]) -> Record:
     libraries = [p for p in pages + extra_pages if p.kind == "library"]
     library, owners = _library(libraries, diagnostics)
     uses = {}
     for design in (p for p in pages if p.kind == "design"):
         uses[design.path] = _check_models(design, library, owners, diagnostics)
-    return Record(str(root), tuple(pages), frozen_map(diagnostics), frozen_map(library),
+    return Record(root, tuple(pages), frozen_map(diagnostics), frozen_map(library),
                   frozen_map(uses))
 
 
-def _read_all(files: list[Path]) -> tuple[list[Design], dict[str, tuple[Diagnostic, ...]]]:
+def _file_readers(files: list[Path]) -> Iterator[tuple[str, Callable[[], Design]]]:
+    return ((path.as_posix(), partial(read_file, path.as_posix())) for path in files)
+
+
+def _read_all(readers: Iterable[tuple[str, Callable[[], Design]]]
+              ) -> tuple[list[Design], dict[str, tuple[Diagnostic, ...]]]:
     pages: list[Design] = []
     diagnostics: dict[str, tuple[Diagnostic, ...]] = {}
-    for path in files:
+    for path, read in readers:
         try:
-            page = read_file(path.as_posix())
+            page = read()
         except DocgenError as exc:
-            diagnostics[path.as_posix()] = exc.diagnostics
+            diagnostics[path] = exc.diagnostics
             continue
         pages.append(page)
         if page.warnings:
