@@ -1,0 +1,500 @@
+"""Modified nodal analysis, dense and batched: the DC system of a circuit for S samples at once.
+
+Public API::
+
+    problem = build_problem(circuit, overrides=None, temperature_c=None)
+    matrix, rhs, state, limited = assemble(problem, x, state, source_scale=1.0, node_gmin=0.0)
+    evaluate(problem, device_name, x) -> terminal currents (S, T)
+
+Unknowns ``x`` are shaped ``(S, M)``: the node voltages of the circuit's nets (in
+``circuit.nets`` order), then internal nodes (a diode's junction behind its series resistance,
+a transistor's inner base behind its base resistance), then branch currents of voltage-defined
+parts (supply, signal, inductor, op-amp output).  ``layout.labels`` names every unknown.
+
+Each device contributes to the equations an affine companion ``J·x_local + c`` (currents leaving
+each node into the device; for a branch row, the branch equation).  Linear parts contribute
+constants; junction devices are linearised at the *limited* junction voltages (the solver's
+state), so ``assemble`` returns the new state and a per-sample flag telling whether limiting
+changed anything.  Arrays carry a ground slot at index M that is dropped before solving.
+
+Branch current sign: a branch current flows into the part's first terminal from the circuit
+and through the part to its second terminal (the two-terminal convention of DEVELOPERS.md);
+for an op-amp it is the current out of the output pin.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Callable, Mapping
+from dataclasses import dataclass
+from typing import Any
+
+import numpy as np
+from scipy import constants
+
+from docgen.elaborate import Circuit, Device
+from docgen.kinds import GROUND
+from docgen.solve import devices as physics
+
+Array = np.ndarray
+Evaluate = Callable[[Array], tuple[Array, Array]]
+Limit = Callable[[Array, Array], Array]
+#: ``(part, value name)`` → value(s); arrays are shaped ``(S,)``.
+Overrides = Mapping[tuple[str, str], Any]
+
+VOLTAGE_DEFINED = ("supply", "signal", "inductor")
+POLARITY = {"npn": 1.0, "pnp": -1.0, "njfet": 1.0, "pjfet": -1.0, "nmos": 1.0, "pmos": -1.0}
+#: Smallest series resistance used when an internal node exists (a sample overriding it to 0).
+MIN_SERIES_RESISTANCE = 1e-6
+
+
+@dataclass(frozen=True)
+class Layout:
+    """Where each device's terminals, internal nodes and branch current sit in ``x``.
+
+    :param size: the number of unknowns M (the ground slot is index M).
+    :param node_count: nets plus internal nodes (the first ``node_count`` unknowns are voltages).
+    :param local: device name → indices of its terminals, then internal node, then branch.
+    :param labels: a human label for every unknown (net name, or part + what it is).
+    """
+
+    size: int
+    node_count: int
+    local: Mapping[str, tuple[int, ...]]
+    internal: Mapping[str, int]
+    branch: Mapping[str, int]
+    labels: tuple[str, ...]
+
+
+@dataclass(frozen=True)
+class Problem:
+    """A circuit with its values resolved to arrays of shape ``(S,)`` at a temperature."""
+
+    circuit: Circuit
+    layout: Layout
+    values: Mapping[str, Mapping[str, Array]]
+    temperature_c: Array
+    samples: int
+
+    @property
+    def temperature_k(self) -> Array:
+        """The temperature of every sample in kelvin."""
+        return self.temperature_c + constants.zero_Celsius
+
+    def subset(self, index: Array) -> Problem:
+        """The same problem restricted to the samples in ``index``."""
+        values = {d: {k: v[index] for k, v in vals.items()} for d, vals in self.values.items()}
+        return Problem(self.circuit, self.layout, values, self.temperature_c[index], len(index))
+
+
+def has_internal_node(device: Device) -> bool:
+    """True when the device's series resistance (diode) or base resistance needs a node."""
+    key = {"diode": "series_resistance", "npn": "base_resistance", "pnp": "base_resistance"}
+    name = key.get(device.kind)
+    if name is None:
+        return False
+    return device.values[name] > 0 or device.spreads.get(name, (0.0, 0.0))[1] > 0
+
+
+def build_layout(circuit: Circuit) -> Layout:
+    """Number the unknowns: nets, internal nodes, branch currents."""
+    labels = list(circuit.nets)
+    internal: dict[str, int] = {}
+    for d in circuit.devices:
+        if has_internal_node(d):
+            internal[d.name] = len(labels)
+            labels.append(f"{d.name} internal node")
+    node_count = len(labels)
+    branch: dict[str, int] = {}
+    for d in circuit.devices:
+        if d.kind in VOLTAGE_DEFINED or d.kind == "opamp":
+            branch[d.name] = len(labels)
+            labels.append(f"{d.name} current")
+    size = len(labels)
+    local: dict[str, tuple[int, ...]] = {}
+    for d in circuit.devices:
+        idx = [size if n == GROUND else circuit.net_index[n] for n in d.nets]
+        if d.name in internal:
+            idx.append(internal[d.name])
+        if d.name in branch:
+            idx.append(branch[d.name])
+        local[d.name] = tuple(idx)
+    return Layout(size, node_count, local, internal, branch, tuple(labels))
+
+
+def build_problem(
+    circuit: Circuit,
+    overrides: Overrides | None = None,
+    temperature_c: Array | float | None = None,
+) -> Problem:
+    """Resolve nominal values and overrides into ``(S,)`` arrays.
+
+    :param overrides: ``(part, name) -> value or (S,) array``; names as in ``Device.values``.
+    :param temperature_c: the temperature (°C), scalar or ``(S,)``; default the bench ambient.
+    :raises KeyError: an override names a part or value the circuit does not have.
+    """
+    overrides = dict(overrides or {})
+    temperature = np.atleast_1d(np.asarray(
+        circuit.temperature_c if temperature_c is None else temperature_c, dtype=float))
+    sizes = {np.size(v) for v in overrides.values()} | {temperature.size}
+    samples = max(sizes)
+    if any(s not in (1, samples) for s in sizes):
+        raise ValueError(f"override arrays disagree in length: {sorted(sizes)}")
+    values: dict[str, dict[str, Array]] = {}
+    for d in circuit.devices:
+        values[d.name] = {k: np.full(samples, float(v)) for k, v in d.values.items()}
+    for (part, name), value in overrides.items():
+        if part not in values or name not in values[part]:
+            raise KeyError(f"no value '{name}' on part '{part}'")
+        values[part][name] = np.broadcast_to(np.asarray(value, dtype=float), (samples,)).copy()
+    return Problem(circuit, build_layout(circuit), values,
+                   np.broadcast_to(temperature, (samples,)).copy(), samples)
+
+
+# --------------------------------------------------------------------------- stamping
+
+
+class _System:
+    """The padded batched matrix and right-hand side being assembled."""
+
+    def __init__(self, samples: int, size: int):
+        self.matrix = np.zeros((samples, size + 1, size + 1))
+        self.rhs = np.zeros((samples, size + 1))
+
+    def add(self, idx: tuple[int, ...], jacobian: Array, constant: Array) -> None:
+        """Add ``jacobian·x_local + constant`` to the rows ``idx`` (moves ``constant`` right)."""
+        rows = np.asarray(idx)
+        np.add.at(self.matrix, (slice(None), rows[:, None], rows[None, :]), jacobian)
+        np.add.at(self.rhs, (slice(None), rows), -constant)
+
+
+def _resistance_at(values: Mapping[str, Array], temperature_c: Array) -> Array:
+    return values["value"] * (1.0 + values["tempco"] * (temperature_c - 25.0))
+
+
+def _conductance_stamp(g: Array) -> Array:
+    return np.stack([np.stack([g, -g], -1), np.stack([-g, g], -1)], -2)
+
+
+def _stamp_resistor(ctx: _StampContext) -> None:
+    g = 1.0 / _resistance_at(ctx.values, ctx.problem.temperature_c)
+    ctx.add((0, 1), _conductance_stamp(g), np.zeros((ctx.samples, 2)))
+
+
+def _stamp_current(ctx: _StampContext) -> None:
+    current = ctx.values["value"] * ctx.source_scale
+    ctx.add((0, 1), np.zeros((ctx.samples, 2, 2)), np.stack([current, -current], -1))
+
+
+def branch_source(device: Device, values: Mapping[str, Array]) -> tuple[Array, Array]:
+    """The DC voltage and series resistance of a voltage-defined part."""
+    zero = np.zeros_like(values["value"])
+    if device.kind == "supply":
+        return values["value"], values["resistance"]
+    if device.kind == "signal":
+        return values["offset"], values["source"]
+    return zero, values["resistance"]  # inductor: a short with its winding resistance
+
+
+def _stamp_branch(ctx: _StampContext) -> None:
+    voltage, resistance = branch_source(ctx.device, ctx.values)
+    scale = ctx.source_scale if ctx.device.kind != "inductor" else 1.0
+    jac = np.zeros((ctx.samples, 3, 3))
+    jac[:, 0, 2], jac[:, 1, 2] = 1.0, -1.0
+    jac[:, 2, 0], jac[:, 2, 1], jac[:, 2, 2] = 1.0, -1.0, -resistance
+    constant = np.zeros((ctx.samples, 3))
+    constant[:, 2] = -voltage * scale
+    ctx.add((0, 1, 2), jac, constant)
+
+
+def _stamp_series(ctx: _StampContext, outer: int, inner: int, resistance: Array) -> None:
+    g = 1.0 / np.maximum(resistance, MIN_SERIES_RESISTANCE)
+    ctx.add((outer, inner), _conductance_stamp(g), np.zeros((ctx.samples, 2)))
+
+
+def _companion(ctx: _StampContext, positions: tuple[int, ...], projection: Array,
+               polarity: float, evaluate: Evaluate, limit: Limit | None) -> None:
+    """Stamp a device whose normalised currents f(u) depend on controls u = p·P·v."""
+    v = ctx.x_full[:, [ctx.idx[p] for p in positions]]
+    u_new = polarity * v @ projection.T
+    u_old = ctx.state.get(ctx.device.name, np.zeros_like(u_new))
+    use_limit = limit is not None and ctx.limiting
+    u = limit(u_new, u_old) if use_limit else u_new  # type: ignore[misc]
+    ctx.new_state[ctx.device.name] = u
+    ctx.limited |= np.any(np.abs(u - u_new) > 1e-12, axis=-1)
+    current, d_du = evaluate(u)
+    jac = d_du @ projection
+    constant = polarity * (current - np.einsum("stc,sc->st", d_du, u))
+    ctx.add(positions, jac, constant)
+
+
+@dataclass
+class _StampContext:
+    problem: Problem
+    device: Device
+    values: Mapping[str, Array]
+    idx: tuple[int, ...]
+    x_full: Array
+    state: Mapping[str, Array]
+    new_state: dict[str, Array]
+    limited: Array
+    system: _System
+    source_scale: Array
+    limiting: bool = True
+    record: Array | None = None
+
+    @property
+    def samples(self) -> int:
+        return self.problem.samples
+
+    def add(self, positions: tuple[int, ...], jacobian: Array, constant: Array) -> None:
+        """Stamp ``jacobian·x + constant`` on the device's local unknowns ``positions``."""
+        self.system.add(tuple(self.idx[p] for p in positions), jacobian, constant)
+        if self.record is not None:  # the device's own equations, evaluated at x
+            local = self.x_full[:, [self.idx[p] for p in positions]]
+            self.record[:, list(positions)] += np.einsum("sij,sj->si", jacobian, local) + constant
+
+
+# ---------------------------------------------------------------- junction devices
+
+
+def diode_model(values: Mapping[str, Array], temperature_k: Array) -> tuple[Evaluate, Limit]:
+    """The diode's normalised evaluation ``u -> (f, df/du)`` and its limiting function."""
+    n_vt = values["ideality"] * physics.thermal_voltage(temperature_k)
+    i_sat = physics.saturation_current_at(values["saturation_current"], temperature_k,
+                                          values["bandgap_energy"],
+                                          values["saturation_current_exponent"],
+                                          values["ideality"])
+    v_crit = physics.critical_voltage(i_sat, n_vt)
+
+    def evaluate(u: Array) -> tuple[Array, Array]:
+        i, g = physics.diode(u[:, 0], i_sat, n_vt, values["breakdown_voltage"])
+        return np.stack([i, -i], -1), np.stack([g, -g], -1)[:, :, None]
+
+    def limit(u_new: Array, u_old: Array) -> Array:
+        return physics.limit_junction(u_new, u_old, n_vt[:, None], v_crit[:, None])
+
+    return evaluate, limit
+
+
+DIODE_PROJECTION = np.array([[1.0, -1.0]])  # u = v_anode − v_cathode
+BIPOLAR_PROJECTION = np.array([[0.0, 1.0, -1.0], [-1.0, 1.0, 0.0]])  # vBE, vBC from (c, b, e)
+FET_PROJECTION = np.array([[0.0, 1.0, -1.0], [1.0, 0.0, -1.0]])  # vGS, vDS from (d, g, s)
+
+
+def _stamp_diode(ctx: _StampContext) -> None:
+    evaluate, limit = diode_model(ctx.values, ctx.problem.temperature_k)
+    positions: tuple[int, ...] = (0, 1)
+    if len(ctx.idx) == 3:  # series resistance: anode — internal node — junction — cathode
+        _stamp_series(ctx, 0, 2, ctx.values["series_resistance"])
+        positions = (2, 1)
+    _companion(ctx, positions, DIODE_PROJECTION, 1.0, evaluate, limit)
+
+
+def bipolar_model(values: Mapping[str, Array], temperature_k: Array) -> tuple[Evaluate, Limit]:
+    """The bipolar transistor's normalised evaluation ``u=(vBE, vBC) -> (f, df/du)``."""
+    vt = physics.thermal_voltage(temperature_k)
+    n_vt = values["ideality"] * vt
+    i_sat = physics.saturation_current_at(values["saturation_current"], temperature_k,
+                                          values["bandgap_energy"],
+                                          values["saturation_current_exponent"],
+                                          values["ideality"])
+    beta_f = physics.beta_at(values["beta"], temperature_k, values["beta_temperature_exponent"])
+    beta_r = physics.beta_at(values["beta_reverse"], temperature_k,
+                             values["beta_temperature_exponent"])
+    v_crit = physics.critical_voltage(i_sat, n_vt)
+
+    def evaluate(u: Array) -> tuple[Array, Array]:
+        r = physics.bipolar(u[:, 0], u[:, 1], i_sat, beta_f, beta_r, values["early_voltage"],
+                            n_vt)
+        return np.stack([r.ic, r.ib, r.ie], -1), np.stack([r.d_dvbe, r.d_dvbc], -1)
+
+    def limit(u_new: Array, u_old: Array) -> Array:
+        return physics.limit_junction(u_new, u_old, n_vt[:, None], v_crit[:, None])
+
+    return evaluate, limit
+
+
+def _stamp_bipolar(ctx: _StampContext) -> None:
+    evaluate, limit = bipolar_model(ctx.values, ctx.problem.temperature_k)
+    positions: tuple[int, ...] = (0, 1, 2)
+    if len(ctx.idx) == 4:  # base resistance: outer base — inner base
+        _stamp_series(ctx, 1, 3, ctx.values["base_resistance"])
+        positions = (0, 3, 2)
+    _companion(ctx, positions, BIPOLAR_PROJECTION, POLARITY[ctx.device.kind], evaluate, limit)
+
+
+def fet_model(kind: str, values: Mapping[str, Array]) -> Evaluate:
+    """The FET's normalised evaluation ``u=(vGS, vDS) -> (f, df/du)`` (square law)."""
+    if kind in ("njfet", "pjfet"):
+        vp = values["pinch_off_voltage"]
+        k, vth = values["drain_saturation_current"] / vp**2, -vp
+    else:
+        k, vth = values["transconductance_coefficient"], values["threshold_voltage"]
+    lam = values["channel_length_modulation"]
+
+    def evaluate(u: Array) -> tuple[Array, Array]:
+        r = physics.square_law(u[:, 0], u[:, 1], k, vth, lam)
+        zero = np.zeros_like(r.current)
+        current = np.stack([r.current, zero, -r.current], -1)
+        d_dgs = np.stack([r.gm, zero, -r.gm], -1)
+        d_dds = np.stack([r.gds, zero, -r.gds], -1)
+        return current, np.stack([d_dgs, d_dds], -1)
+
+    return evaluate
+
+
+def _stamp_fet(ctx: _StampContext) -> None:
+    evaluate = fet_model(ctx.device.kind, ctx.values)
+    _companion(ctx, (0, 1, 2), FET_PROJECTION, POLARITY[ctx.device.kind], evaluate, None)
+
+
+# ------------------------------------------------------------------------- op-amp
+
+
+def opamp_residual(values: Mapping[str, Array], x_local: Array, source_scale: Array | float,
+                   vd_at: Array | None = None) -> tuple[Array, Array]:
+    """The op-amp's equations at ``x_local`` = (in+, in−, out, v+, v−, output current).
+
+    Rows: currents leaving each pin's net into the op-amp, then the output branch equation
+    ``v_out − E + Ro·i_out = 0``.  Input bias currents flow into the inputs and leave through
+    v−; the quiescent current flows v+ → v−; the output current comes from v+ when sourcing and
+    goes to v− when sinking.  Returns the residual ``(S, 6)`` and its Jacobian ``(S, 6, 6)``.
+    With ``vd_at`` the output stage is linearised at that differential input instead of the
+    one in ``x_local`` (the solver's limiting of the output stage).
+    """
+    vin_p, vin_n, vout, vpos, vneg, iout = (x_local[:, i] for i in range(6))
+    bias_p = values["input_bias_current"] + values["input_offset_current"] / 2.0
+    bias_n = values["input_bias_current"] - values["input_offset_current"] / 2.0
+    quiescent = values["supply_current"] * source_scale
+    vd = vin_p - vin_n + values["input_offset_voltage"] * source_scale
+    at = vd if vd_at is None else vd_at
+    e = physics.opamp_output(at, vpos, vneg, values["open_loop_gain"], values["output_headroom"])
+    output = e.voltage + e.d_dvd * (vd - at)
+    sourcing = iout > 0
+    residual = np.stack([
+        bias_p * source_scale, bias_n * source_scale, -iout,
+        quiescent + np.where(sourcing, iout, 0.0),
+        -(quiescent + np.where(sourcing, 0.0, -iout) + (bias_p + bias_n) * source_scale),
+        vout - output + values["output_resistance"] * iout,
+    ], -1)
+    jac = np.zeros(x_local.shape + (6,))
+    jac[:, 2, 5] = -1.0
+    jac[:, 3, 5] = np.where(sourcing, 1.0, 0.0)
+    jac[:, 4, 5] = np.where(sourcing, 0.0, 1.0)
+    jac[:, 5, 0], jac[:, 5, 1] = -e.d_dvd, e.d_dvd
+    jac[:, 5, 2], jac[:, 5, 3], jac[:, 5, 4] = 1.0, -e.d_dvpos, -e.d_dvneg
+    jac[:, 5, 5] = values["output_resistance"]
+    return residual, jac
+
+
+def limit_opamp(values: Mapping[str, Array], x_local: Array, vd_new: Array, vd_old: Array
+                ) -> Array:
+    """Keep a Newton step from throwing the op-amp's output stage deep into its limit.
+
+    A step that would take the output stage beyond the edge of its linear range is first
+    linearised just inside that edge, where the stage has its full gain; only a second step
+    the same way (from that edge) may go on into the limit.  A comparator that really
+    saturates gets there in two steps, while a feedback stage does not bounce rail to rail.
+    """
+    gain = values["open_loop_gain"]
+    inset = 4.0 * physics.OUTPUT_KNEE
+    high = x_local[:, 3] - values["output_headroom"] - inset
+    low = x_local[:, 4] + values["output_headroom"] + inset
+    y_new, y_old = gain * vd_new, gain * vd_old
+    sensible = high > low  # rails not yet established (first iteration from 0 V): no limit
+    tiny = 1e-6 * inset
+    above = sensible & (y_new > high) & (y_old < high - tiny)
+    below = sensible & (y_new < low) & (y_old > low + tiny)
+    return np.where(above, high / gain, np.where(below, low / gain, vd_new))
+
+
+def _stamp_opamp(ctx: _StampContext) -> None:
+    x_local = ctx.x_full[:, list(ctx.idx)]
+    vd_at = None
+    if ctx.limiting:
+        vd = x_local[:, 0] - x_local[:, 1] + ctx.values["input_offset_voltage"] * ctx.source_scale
+        start = 0.5 * (x_local[:, 3] + x_local[:, 4]) / ctx.values["open_loop_gain"]
+        old = ctx.state.get(ctx.device.name, start[:, None])[:, 0]
+        vd_at = limit_opamp(ctx.values, x_local, vd, old)
+        ctx.new_state[ctx.device.name] = vd_at[:, None]
+        ctx.limited |= np.abs(vd_at - vd) * ctx.values["open_loop_gain"] > 1e-9
+    residual, jac = opamp_residual(ctx.values, x_local, ctx.source_scale, vd_at)
+    ctx.add(tuple(range(6)), jac, residual - np.einsum("sij,sj->si", jac, x_local))
+
+
+STAMPS: dict[str, Callable[[_StampContext], None]] = {
+    "resistor": _stamp_resistor,
+    "capacitor": lambda ctx: None,  # open at DC
+    "current": _stamp_current,
+    "supply": _stamp_branch,
+    "signal": _stamp_branch,
+    "inductor": _stamp_branch,
+    "diode": _stamp_diode,
+    "npn": _stamp_bipolar,
+    "pnp": _stamp_bipolar,
+    "njfet": _stamp_fet,
+    "pjfet": _stamp_fet,
+    "nmos": _stamp_fet,
+    "pmos": _stamp_fet,
+    "opamp": _stamp_opamp,
+}
+
+
+def pad(x: Array) -> Array:
+    """``x`` with the ground slot (0 V) appended."""
+    return np.concatenate([x, np.zeros((x.shape[0], 1))], axis=1)
+
+
+def assemble(
+    problem: Problem,
+    x: Array,
+    state: Mapping[str, Array],
+    source_scale: Array | float = 1.0,
+    node_gmin: Array | float = 0.0,
+) -> tuple[Array, Array, dict[str, Array], Array]:
+    """The linearised system ``A·x_next = b`` at ``x`` (shapes ``(S, M, M)`` and ``(S, M)``).
+
+    :param state: the previous limited junction voltages per device (empty at the start).
+    :param source_scale: factor on every independent source, scalar or ``(S,)`` (source
+        stepping).
+    :param node_gmin: conductance from every node to ground, scalar or ``(S,)`` (gmin stepping).
+    :returns: matrix, right-hand side, new limiting state, and a ``(S,)`` flag that is true where
+        junction limiting changed a voltage (the step cannot be trusted as converged).
+    """
+    samples, size = problem.samples, problem.layout.size
+    system = _System(samples, size)
+    scale = np.broadcast_to(np.asarray(source_scale, dtype=float), (samples,))
+    x_full = pad(x)
+    new_state: dict[str, Array] = {}
+    limited = np.zeros(samples, dtype=bool)
+    for device in problem.circuit.devices:
+        ctx = _StampContext(problem, device, problem.values[device.name],
+                            problem.layout.local[device.name], x_full, state, new_state,
+                            limited, system, scale)
+        STAMPS[device.kind](ctx)
+    nodes = np.arange(problem.layout.node_count)
+    gmin = np.broadcast_to(np.asarray(node_gmin, dtype=float), (samples,))
+    system.matrix[:, nodes, nodes] += gmin[:, None]
+    return system.matrix[:, :size, :size], system.rhs[:, :size], new_state, limited
+
+
+def device_currents(problem: Problem, x: Array) -> dict[str, Array]:
+    """Each device's currents at the solution ``x``, shaped ``(S, T)`` per device.
+
+    Entry ``t`` is the current flowing from terminal ``t``'s net into the part (the same
+    equations the solver stamps, evaluated without limiting).
+    """
+    samples, size = problem.samples, problem.layout.size
+    system = _System(samples, size)
+    scale = np.ones(samples)
+    x_full = pad(x)
+    out: dict[str, Array] = {}
+    for device in problem.circuit.devices:
+        idx = problem.layout.local[device.name]
+        record = np.zeros((samples, len(idx)))
+        ctx = _StampContext(problem, device, problem.values[device.name], idx, x_full, {}, {},
+                            np.zeros(samples, dtype=bool), system, scale, limiting=False,
+                            record=record)
+        STAMPS[device.kind](ctx)
+        out[device.name] = record[:, :len(device.terminals)]
+    return out
