@@ -1,0 +1,217 @@
+"""Plots for the published notebook: matplotlib figures rendered to deterministic SVG text.
+
+Every function takes plain numbers (SI units) and returns an SVG document as a string.  Output is
+byte-identical for identical input: the SVG hash salt is fixed, no date goes into the metadata,
+text stays text (no font-dependent glyph paths) and the Agg backend is forced.  Frequency axes are
+logarithmic; every axis is labelled with its unit in engineering notation.  Requirement limits are
+drawn on the plot they constrain as :class:`Mark` objects.
+"""
+
+from __future__ import annotations
+
+import io
+from collections.abc import Sequence
+from dataclasses import dataclass
+from typing import Any, Literal
+
+WIDTH_IN = 7.0  # fits the page's text column at 96 dpi (about 670 px)
+ROW_IN = 2.6
+LIMIT_COLOUR = "#b03a2e"
+CURVE_COLOURS = ("#1f4e79", "#7a5c00", "#3d7a3d", "#6b3d7a")
+
+
+@dataclass(frozen=True, slots=True)
+class Mark:
+    """A requirement limit drawn on a plot.
+
+    :param where: ``"y"`` a horizontal limit over the whole x range (``low``/``high`` in y units);
+        ``"x"`` a vertical limit (``low``/``high`` in x units); ``"point"`` a bar at ``at``
+        (x units) spanning ``low``..``high`` in y units.
+    :param label: the requirement text shown beside the mark.
+    :param panel: which panel of a multi-panel figure (0 = first).
+    """
+
+    where: Literal["x", "y", "point"]
+    low: float | None
+    high: float | None
+    label: str
+    at: float | None = None
+    panel: int = 0
+
+
+def _pyplot() -> Any:
+    import matplotlib
+
+    matplotlib.use("Agg", force=True)
+    import matplotlib.pyplot as plt
+
+    plt.rcParams.update({
+        "svg.hashsalt": "docgen",
+        "svg.fonttype": "none",
+        "font.family": "sans-serif",
+        "font.size": 8.5,
+        "axes.grid": True,
+        "grid.color": "#d9d9d9",
+        "grid.linewidth": 0.6,
+        "axes.edgecolor": "#555555",
+        "axes.linewidth": 0.7,
+        "lines.linewidth": 1.4,
+        "figure.dpi": 96,
+        "path.simplify": False,
+    })
+    return plt
+
+
+def _eng(unit: str) -> Any:
+    from matplotlib.ticker import EngFormatter
+
+    return EngFormatter(unit=unit, sep=" ")
+
+
+def _to_svg(fig: Any) -> str:
+    plt = _pyplot()
+    buffer = io.StringIO()
+    fig.savefig(buffer, format="svg", metadata={"Date": None, "Creator": "docgen"},
+                bbox_inches="tight", pad_inches=0.05)
+    plt.close(fig)
+    return buffer.getvalue()
+
+
+def _figure(rows: int, *, sharex: bool = True, height: float = ROW_IN) -> tuple[Any, list[Any]]:
+    plt = _pyplot()
+    fig, axes = plt.subplots(rows, 1, figsize=(WIDTH_IN, height * rows), sharex=sharex,
+                             squeeze=False)
+    return fig, [row[0] for row in axes]
+
+
+def _draw_marks(axes: Sequence[Any], marks: Sequence[Mark]) -> None:
+    style = {"color": LIMIT_COLOUR, "linewidth": 1.0, "linestyle": "--"}
+    for mark in marks:
+        ax = axes[min(mark.panel, len(axes) - 1)]
+        if mark.where == "y":
+            for value in (mark.low, mark.high):
+                if value is not None:
+                    ax.axhline(value, **style)
+        elif mark.where == "x":
+            for value in (mark.low, mark.high):
+                if value is not None:
+                    ax.axvline(value, **style)
+        elif mark.at is not None:
+            low = mark.low if mark.low is not None else ax.get_ylim()[0]
+            high = mark.high if mark.high is not None else ax.get_ylim()[1]
+            ax.plot([mark.at, mark.at], [low, high], color=LIMIT_COLOUR, linewidth=2.2,
+                    solid_capstyle="butt")
+            for value in (mark.low, mark.high):
+                if value is not None:
+                    ax.plot([mark.at], [value], marker="_", markersize=12, color=LIMIT_COLOUR)
+    if marks:
+        from matplotlib.lines import Line2D
+
+        handle = Line2D([], [], **style)
+        axes[0].legend([handle], ["requirement limit"], loc="best", fontsize=7.5,
+                       frameon=False)
+
+
+def _log_x(ax: Any, unit: str) -> None:
+    ax.set_xscale("log")
+    ax.xaxis.set_major_formatter(_eng(unit))
+
+
+def frequency_response(freq_hz: Sequence[float], gain_db: Sequence[float],
+                       phase_deg: Sequence[float] | None = None, *,
+                       marks: Sequence[Mark] = ()) -> str:
+    """Bode plot: gain in dB (and phase in degrees when given) against log frequency."""
+    rows = 2 if phase_deg is not None else 1
+    fig, axes = _figure(rows)
+    axes[0].plot(freq_hz, gain_db, color=CURVE_COLOURS[0])
+    axes[0].set_ylabel("gain (dB)")
+    if phase_deg is not None:
+        axes[1].plot(freq_hz, phase_deg, color=CURVE_COLOURS[1])
+        axes[1].set_ylabel("phase (°)")
+    for ax in axes:
+        _log_x(ax, "Hz")
+    axes[-1].set_xlabel("frequency")
+    _draw_marks(axes, marks)
+    return _to_svg(fig)
+
+
+def curves(freq_hz: Sequence[float], series: Sequence[tuple[str, Sequence[float]]], *,
+           unit: str, ylabel: str, log_y: bool = True, marks: Sequence[Mark] = ()) -> str:
+    """Several named curves against log frequency on one axis (impedances, noise densities)."""
+    fig, axes = _figure(1)
+    ax = axes[0]
+    for index, (name, values) in enumerate(series):
+        ax.plot(freq_hz, values, color=CURVE_COLOURS[index % len(CURVE_COLOURS)], label=name)
+    _log_x(ax, "Hz")
+    if log_y:
+        ax.set_yscale("log")
+    ax.yaxis.set_major_formatter(_eng(unit))
+    ax.set_ylabel(ylabel)
+    ax.set_xlabel("frequency")
+    if len(series) > 1:
+        ax.legend(loc="best", fontsize=7.5, frameon=False)
+    _draw_marks(axes, marks)
+    return _to_svg(fig)
+
+
+def waveform(time_s: Sequence[float], traces: Sequence[tuple[str, Sequence[float]]]) -> str:
+    """Voltages against time (the bench sine's steady state)."""
+    fig, axes = _figure(1)
+    ax = axes[0]
+    for index, (name, values) in enumerate(traces):
+        ax.plot(time_s, values, color=CURVE_COLOURS[index % len(CURVE_COLOURS)], label=name)
+    ax.xaxis.set_major_formatter(_eng("s"))
+    ax.yaxis.set_major_formatter(_eng("V"))
+    ax.set_xlabel("time")
+    ax.set_ylabel("voltage")
+    if len(traces) > 1:
+        ax.legend(loc="best", fontsize=7.5, frameon=False)
+    return _to_svg(fig)
+
+
+def spectrum(orders: Sequence[int], level_db: Sequence[float]) -> str:
+    """Harmonic levels in dB relative to the fundamental, as bars by harmonic order."""
+    fig, axes = _figure(1, height=2.2)
+    ax = axes[0]
+    bottom = min(min(level_db, default=-120.0), -20.0) - 10.0
+    ax.bar(list(orders), [v - bottom for v in level_db], bottom=bottom, width=0.6,
+           color=CURVE_COLOURS[0])
+    ax.set_xticks(list(orders))
+    ax.set_xlabel("harmonic order")
+    ax.set_ylabel("level (dB re fundamental)")
+    ax.set_ylim(bottom, 5)
+    return _to_svg(fig)
+
+
+def histogram(samples: Sequence[float], *, unit: str, label: str, bins: int = 30,
+              counts: Sequence[float] | None = None, edges: Sequence[float] | None = None,
+              marks: Sequence[Mark] = ()) -> str:
+    """Distribution of one metric across boards: raw ``samples``, or ``counts`` per bin with
+    the bin ``edges``."""
+    fig, axes = _figure(1, height=1.9)
+    ax = axes[0]
+    if counts is not None and edges is not None:
+        widths = [b - a for a, b in zip(edges[:-1], edges[1:], strict=True)]
+        ax.bar(list(edges[:-1]), list(counts), width=widths, align="edge",
+               color=CURVE_COLOURS[0], edgecolor="white", linewidth=0.4)
+    else:
+        ax.hist(list(samples), bins=bins, color=CURVE_COLOURS[0], edgecolor="white",
+                linewidth=0.4)
+    ax.xaxis.set_major_formatter(_eng(unit))
+    ax.set_xlabel(label)
+    ax.set_ylabel("boards")
+    _draw_marks(axes, marks)
+    return _to_svg(fig)
+
+
+def drift(temperature_c: Sequence[float], values: Sequence[float], *, unit: str,
+          label: str, marks: Sequence[Mark] = ()) -> str:
+    """One metric against ambient temperature."""
+    fig, axes = _figure(1, height=1.9)
+    ax = axes[0]
+    ax.plot(temperature_c, values, marker="o", markersize=3, color=CURVE_COLOURS[0])
+    ax.yaxis.set_major_formatter(_eng(unit))
+    ax.set_xlabel("ambient (°C)")
+    ax.set_ylabel(label)
+    _draw_marks(axes, marks)
+    return _to_svg(fig)

@@ -1,0 +1,134 @@
+"""Results sections for the large-signal and feedback analyses (registered on import)."""
+
+from __future__ import annotations
+
+import math
+from typing import Any
+
+from docgen import plots
+from docgen.design import Design
+from docgen.site.marks import marks_for
+from docgen.site.sections import (
+    BUILDERS,
+    Results,
+    Section,
+    add_fact,
+    add_facts,
+    curve_of,
+    figure,
+    named_curves,
+    new_section,
+    table,
+)
+from docgen.units import format_eng
+
+
+def large_signal(design: Design, results: Results) -> Section | None:
+    """The bench sine's waveform, its spectrum, THD, swing, headroom and clipping."""
+    section = results.get("transient")
+    if not isinstance(section, dict):
+        return None
+    out = new_section("large-signal", "Waveform and spectrum")
+    add_facts(out, section, (
+        ("THD at the bench amplitude", "thd_percent", "%"),
+        ("largest output swing within the distortion limit (peak to peak)", "max_swing_vpp", "V"),
+        ("input amplitude at that swing", "swing_limit_amplitude_v", "V"),
+        ("headroom, positive", "headroom_pos_v", "V"),
+        ("headroom, negative", "headroom_neg_v", "V")))
+    steady = section.get("steady_state")
+    if isinstance(steady, dict) and "reached" in steady:
+        words = "reached" if steady.get("reached") else "NOT reached (figures are approximate)"
+        out["facts"].append(["steady state", f"{words} after {steady.get('periods', '?')} periods"])
+    time = section.get("time_s")
+    if isinstance(time, list) and time:
+        traces = named_curves(section, (("output", "output_v"), ("input", "input_v")),
+                              len(time))
+        if traces:
+            out["figures"].append(figure("waveform.svg", "Steady-state waveforms at the bench "
+                                         "amplitude", plots.waveform(time, traces)))
+    harmonics = [h for h in section.get("harmonics") or [] if isinstance(h, dict)
+                 and isinstance(h.get("order"), int) and h["order"] >= 2]
+    if harmonics:
+        levels = [(h["order"], h.get("relative_db")) for h in harmonics]
+        levels = [(o, float(v)) for o, v in levels if isinstance(v, (int, float))
+                  and math.isfinite(v)]
+        if levels:
+            out["figures"].append(figure("spectrum.svg", "Harmonics relative to the fundamental",
+                                         plots.spectrum([o for o, _ in levels],
+                                                        [v for _, v in levels])))
+        out["tables"].append(table("Harmonics (2nd..9th)", ["order", "amplitude", "relative"],
+                                   [[str(h["order"]), format_eng(h.get("amplitude_v"), "V"),
+                                     format_eng(h.get("relative_db"), "dB")]
+                                    for h in harmonics if h["order"] <= 9]))
+    events = [e for e in section.get("clipping") or [] if isinstance(e, dict)]
+    if events:
+        out["tables"].append(table("Clipping", ["part or net", "what", "at phase"],
+                                   [[str(e.get("part", e.get("net", ""))),
+                                     str(e.get("what", e.get("kind", ""))),
+                                     format_eng(e.get("phase_deg"), "°")] for e in events],
+                                   [False, False, True]))
+    return out
+
+
+def feedback(design: Design, results: Results) -> Section | None:
+    """Loop gain with margins, the step response figures, supply and common-mode rejection."""
+    section = results.get("feedback")
+    if not isinstance(section, dict):
+        return None
+    out = new_section("feedback", "Feedback, stability and supply rejection")
+    add_facts(out, section, (("crossover frequency", "crossover_hz", "Hz"),
+                             ("phase margin", "phase_margin_deg", "°"),
+                             ("gain margin", "gain_margin_db", "dB"),
+                             ("PSRR at the signal frequency", "psrr_at_signal_db", "dB")))
+    step = section.get("step")
+    if isinstance(step, dict):
+        add_facts(out, step, (("step overshoot", "overshoot_percent", "%"),
+                              ("step rise time", "rise_time_s", "s"),
+                              ("step settling time", "settling_time_s", "s")))
+    _offset(out, section.get("offset"))
+    freq = section.get("loop_freq_hz")
+    if isinstance(freq, list) and freq:
+        gain = curve_of(section, "loop_gain_db", len(freq))
+        if gain is not None:
+            phase = curve_of(section, "loop_phase_deg", len(freq))
+            marks = marks_for(design, {"crossover": ("x", 0)})
+            out["figures"].append(figure("loop-gain.svg", "Loop gain and phase",
+                                         plots.frequency_response(freq, gain, phase,
+                                                                  marks=marks)))
+    _rejection(design, out, section)
+    return None if not (out["facts"] or out["figures"]) else out
+
+
+def _offset(out: Section, offset: Any) -> None:
+    if not isinstance(offset, dict):
+        return
+    for key, value in sorted(offset.items()):
+        if key.endswith("_v") and isinstance(value, (int, float)):
+            add_fact(out, "output offset, " + key[:-2].replace("_", " "), value, "V")
+
+
+def _rejection(design: Design, out: Section, section: dict[str, Any]) -> None:
+    series = []
+    freq: list[float] | None = None
+    psrr = section.get("psrr")
+    if isinstance(psrr, dict):
+        for supply, curve in sorted(psrr.items()):
+            if isinstance(curve, dict) and isinstance(curve.get("freq_hz"), list):
+                freq = freq or curve["freq_hz"]
+                values = curve_of(curve, "psrr_db", len(freq))
+                if values is not None and len(curve["freq_hz"]) == len(freq):
+                    series.append((f"PSRR {supply}", values))
+    cmrr = section.get("cmrr")
+    if isinstance(cmrr, dict) and isinstance(cmrr.get("freq_hz"), list):
+        freq = freq or cmrr["freq_hz"]
+        values = curve_of(cmrr, "cmrr_db", len(freq))
+        if values is not None and len(cmrr["freq_hz"]) == len(freq):
+            series.append(("CMRR", values))
+    if freq and series:
+        marks = marks_for(design, {"psrr_at": ("point", 0), "cmrr_at": ("point", 0)})
+        out["figures"].append(figure("rejection.svg", "Supply and common-mode rejection",
+                                     plots.curves(freq, series, unit="dB", ylabel="rejection",
+                                                  log_y=False, marks=marks)))
+
+
+BUILDERS.extend([large_signal, feedback])
