@@ -35,6 +35,7 @@ class CheckRun:
     diagnostics: list[Diagnostic]
     files: int
     reports: list[dict[str, Any]] = field(default_factory=list)
+    notes: list[str] = field(default_factory=list)
 
     @property
     def designs(self) -> list[tuple[Record, Design]]:
@@ -60,6 +61,8 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
                         help="a folder of library pages to use when checking single files "
                         f"(default: {DEFAULT_ROOT}/ if it exists); may be repeated")
     parser.add_argument("--json", action="store_true", help="print one JSON document")
+    parser.add_argument("--notes", action="store_true",
+                        help="also print notes (parts with no rating or tolerance to check)")
 
 
 def load(paths: list[str], library: list[str] | None = None) -> CheckRun:
@@ -92,12 +95,24 @@ def _unique(diagnostics: list[Diagnostic]) -> list[Diagnostic]:
 def check_designs(check_run: CheckRun, args: argparse.Namespace) -> int:
     """Check each readable design further; return the exit code this adds (0 or 1).
 
-    The first version checks nothing beyond reading.  Requirement verdicts extend this.
+    Each design goes through the review gate (:mod:`docgen.check.gate`): requirement and
+    estimate lines are read, the analyses its requirements need are solved, and every failed
+    requirement and caution becomes a diagnostic.  Exit 1 when any of them is an error.
     """
-    for _record, design in check_run.designs:
-        check_run.reports.append({"path": design.path, "title": design.header.title,
-                                  "status": design.header.status})
-    return 0
+    from docgen.check.gate import check_design, failing
+
+    code = 0
+    added: list[Diagnostic] = []
+    for record, design in check_run.designs:
+        gate = check_design(design, record.models_for(design))
+        added += gate.diagnostics
+        check_run.notes += gate.notes
+        check_run.reports.append(gate.report)
+        if failing(gate):
+            code = 1
+    check_run.diagnostics = _unique(check_run.diagnostics + added)
+    check_run.diagnostics.sort(key=lambda d: (d.path, d.line, d.col))
+    return code
 
 
 def run(args: argparse.Namespace) -> int:
@@ -111,6 +126,8 @@ def run(args: argparse.Namespace) -> int:
     else:
         for d in check_run.diagnostics:
             print(d.render(), end="\n\n")
+        for note in check_run.notes if getattr(args, "notes", False) else ():
+            print(note)
         print(summary(check_run))
     sys.stdout.flush()
     return code
@@ -123,8 +140,14 @@ def summary(check_run: CheckRun) -> str:
     def count(n: int, word: str) -> str:
         return f"{n} {word}{'' if n == 1 else 's'}"
 
+    verdicts = [row["verdict"] for r in check_run.reports for row in r.get("checks", ())]
+    tally = ""
+    if verdicts:
+        tally = (f"; requirements: {verdicts.count('pass')} pass, {verdicts.count('fail')} fail, "
+                 f"{verdicts.count('not computed')} not computed")
     return (f"checked {count(check_run.files, 'file')} ({count(designs, 'readable design')}): "
-            f"{count(check_run.errors, 'error')}, {count(check_run.warnings, 'warning')}")
+            f"{count(check_run.errors, 'error')}, {count(check_run.warnings, 'warning')}"
+            + tally)
 
 
 def _json(check_run: CheckRun, code: int) -> dict[str, Any]:
