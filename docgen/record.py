@@ -18,6 +18,7 @@ from docgen.design import Design, ModelDef, frozen_map
 from docgen.diagnostics import Collector, Diagnostic, DocgenError, did_you_mean
 from docgen.kinds import KINDS
 from docgen.reader import read_file, read_text
+from docgen.reader.circuit import article
 
 BUILTIN = "<built-in>"
 
@@ -167,17 +168,18 @@ def _check_models(design: Design, library: Mapping[str, ModelDef], owners: Mappi
             continue
         span = part.spans.get("model", part.span)
         model = own.get(part.model) or library.get(part.model)
+        wanted = KINDS[part.kind].model_kind
+        fitting = [n for n, m in {**library, **own}.items() if m.kind == wanted]
         if model is None:
             collector.add(span, f"unknown model '{part.model}'",
-                          hint=did_you_mean(part.model, [*own, *library])
+                          hint=did_you_mean(part.model, fitting)
+                          or did_you_mean(part.model, [*own, *library])
                           or "define it in a models block or a library page")
             continue
-        wanted = KINDS[part.kind].model_kind
         if model.kind != wanted:
-            collector.add(span, f"model '{part.model}' is a {model.kind} model, but {part.name} "
-                          f"is a {part.kind}",
-                          hint=did_you_mean(part.model, [n for n, m in {**library, **own}.items()
-                                                         if m.kind == wanted]))
+            collector.add(span, f"model '{part.model}' is {article(model.kind)} model, but "
+                          f"{part.name} is {article(part.kind)}",
+                          hint=did_you_mean(part.model, fitting))
             continue
         if part.model not in own and part.model in owners:
             used.add(owners[part.model])

@@ -6,7 +6,8 @@ Keys other analyses need later (``common mode``, ``step`` ...) are kept raw in `
 
 from __future__ import annotations
 
-from collections.abc import Callable
+from collections.abc import Callable, Iterator
+from contextlib import contextmanager
 from dataclasses import fields as dataclass_fields
 from typing import Any
 
@@ -49,11 +50,23 @@ def _positive(text: str, unit: str, what: str) -> float:
     return value
 
 
+@contextmanager
+def _shifted(offset: int) -> Iterator[None]:
+    """Move the offset of a value error raised inside by ``offset`` characters."""
+    try:
+        yield
+    except QuantityError as exc:
+        exc.offset += offset
+        raise
+
+
 def _span_of(text: str, unit: str, what: str) -> tuple[float, float]:
     low_text, dots, high_text = text.partition("..")
     if not dots:
         raise BenchValueError(f"{what} is a range 'low .. high'", "e.g. '10 Hz .. 1 MHz'")
-    low, high = _positive(low_text, unit, what), _positive(high_text, unit, what)
+    low = _positive(low_text, unit, what)
+    with _shifted(len(low_text) + 2):
+        high = _positive(high_text, unit, what)
     if not low < high:
         raise BenchValueError(f"{what}: the low end must be below the high end")
     return low, high
@@ -63,8 +76,10 @@ def _load(text: str) -> dict[str, Any]:
     for bar in ("||", "‖"):
         if bar in text:
             resistance, _, capacitance = text.partition(bar)
+            with _shifted(len(resistance) + len(bar)):
+                load_capacitance = _positive(capacitance, "F", "a load capacitance")
             return {"load_resistance": _positive(resistance, "Ω", "a load resistance"),
-                    "load_capacitance": _positive(capacitance, "F", "a load capacitance")}
+                    "load_capacitance": load_capacitance}
     return {"load_resistance": _positive(text, "Ω", "a load resistance")}
 
 
@@ -79,7 +94,8 @@ def _ambient(text: str) -> dict[str, Any]:
         if not rest.rstrip().endswith(")"):
             raise BenchValueError("a range in brackets needs its ')'")
         nominal = parse_temperature(nominal_text)
-        low, high = _temperature_range(rest.rstrip()[:-1])
+        with _shifted(len(nominal_text) + 1):
+            low, high = _temperature_range(rest.rstrip()[:-1])
     elif ".." in text:
         nominal = 25.0
         low, high = _temperature_range(text)
@@ -95,7 +111,9 @@ def _temperature_range(text: str) -> tuple[float, float]:
     low_text, dots, high_text = text.partition("..")
     if not dots:
         raise BenchValueError("a temperature range is 'low .. high'", "e.g. '-20 °C .. 60 °C'")
-    low, high = parse_temperature(low_text), parse_temperature(high_text)
+    low = parse_temperature(low_text)
+    with _shifted(len(low_text) + 2):
+        high = parse_temperature(high_text)
     if not low < high:
         raise BenchValueError("the low end of the range must be below the high end")
     return low, high

@@ -138,6 +138,8 @@ def _same_unit(first: str, second: str, text: str) -> str:
 
 def _value(text: str, offset: int) -> tuple[float, str]:
     """(value in SI, unit) of one limit value; ``offset`` is its place in the limit text."""
+    offset += len(text) - len(text.lstrip())
+    text = text.strip()
     words = text.split()
     qualifier = ""
     if len(words) > 1 and words[-1] in _QUALIFIERS:

@@ -69,13 +69,15 @@ def _bench_targets(parts: list[Part], bench: Bench, nets: set[str],
     if bench.input is not None:
         span = bench.spans.get("input", Span(1, 1))
         names = {p.name: p for p in parts}
+        hint = did_you_mean(bench.input, signals) or (
+            f"the circuit's signal is '{signals[0]}'" if len(signals) == 1
+            else "the input is the part of kind 'signal' that drives the stage")
         if bench.input not in names:
             collector.add(span, f"bench input '{bench.input}' is not a part of the circuit",
-                          hint=did_you_mean(bench.input, signals or names))
+                          hint=hint)
         elif names[bench.input].kind != "signal":
             collector.add(span, f"bench input '{bench.input}' is a {names[bench.input].kind}, "
-                          "not a signal", hint=did_you_mean(bench.input, signals)
-                          or "the input is the part of kind 'signal' that drives the stage")
+                          "not a signal", hint=hint)
     if bench.output is not None and bench.output not in nets:
         collector.add(bench.spans.get("output", Span(1, 1)),
                       f"bench output '{bench.output}' is not a net of the circuit",
