@@ -29,6 +29,7 @@ class GateResult:
     diagnostics: list[Diagnostic] = field(default_factory=list)
     notes: list[str] = field(default_factory=list)
     report: dict[str, Any] = field(default_factory=dict)
+    input_error: bool = False
 
 
 def sections_for(design: Design) -> frozenset[str]:
@@ -93,13 +94,16 @@ def check_design(design: Design, library: Mapping[str, ModelDef]) -> GateResult:
                               "status": design.header.status})
     gate.diagnostics += static_problems(design, library)
     if any(d.severity == "error" for d in gate.diagnostics):
+        gate.input_error = True
         return gate
     try:
         results = pipeline.run(design, library, only=sections_for(design))
     except DocgenError as exc:  # the circuit cannot be solved as drawn
         gate.diagnostics += exc.diagnostics
+        gate.input_error = True
         return gate
     status = design.header.status
+    gate.input_error = bool(results.get("errors"))
     for error in results.get("errors", ()):
         gate.diagnostics.append(_at(design, error["line"], error["col"], "error",
                                     f"{error['analysis']} analysis: {error['message']}",
@@ -122,6 +126,8 @@ def check_design(design: Design, library: Mapping[str, ModelDef]) -> GateResult:
     return gate
 
 
-def failing(gate: GateResult) -> bool:
-    """True when the gate should make ``docgen check`` exit 1."""
-    return any(d.severity == "error" for d in gate.diagnostics)
+def exit_code(gate: GateResult) -> int:
+    """2 when the design could not be checked, 1 when an error-level verdict or caution."""
+    if gate.input_error:
+        return 2
+    return 1 if any(d.severity == "error" for d in gate.diagnostics) else 0

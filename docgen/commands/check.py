@@ -93,13 +93,14 @@ def _unique(diagnostics: list[Diagnostic]) -> list[Diagnostic]:
 
 
 def check_designs(check_run: CheckRun, args: argparse.Namespace) -> int:
-    """Check each readable design further; return the exit code this adds (0 or 1).
+    """Check each readable design further; return the exit code this adds (0, 1 or 2).
 
     Each design goes through the review gate (:mod:`docgen.check.gate`): requirement and
     estimate lines are read, the analyses its requirements need are solved, and every failed
-    requirement and caution becomes a diagnostic.  Exit 1 when any of them is an error.
+    requirement and caution becomes a diagnostic.  Exit 1 when any of them is an error, 2 when
+    a requirement or estimate line does not read or the circuit cannot be solved.
     """
-    from docgen.check.gate import check_design, failing
+    from docgen.check.gate import check_design, exit_code
 
     code = 0
     added: list[Diagnostic] = []
@@ -108,8 +109,7 @@ def check_designs(check_run: CheckRun, args: argparse.Namespace) -> int:
         added += gate.diagnostics
         check_run.notes += gate.notes
         check_run.reports.append(gate.report)
-        if failing(gate):
-            code = 1
+        code = max(code, exit_code(gate))
     check_run.diagnostics = _unique(check_run.diagnostics + added)
     check_run.diagnostics.sort(key=lambda d: (d.path, d.line, d.col))
     return code
@@ -118,8 +118,9 @@ def check_designs(check_run: CheckRun, args: argparse.Namespace) -> int:
 def run(args: argparse.Namespace) -> int:
     """Read, check, print; exit 2 on input errors, else the code from :func:`check_designs`."""
     check_run = load(list(args.paths), args.library)
+    input_errors = check_run.errors  # the gate adds verdict errors, which mean exit 1, not 2
     code = check_designs(check_run, args)
-    if check_run.errors:
+    if input_errors:
         code = 2
     if args.json:
         print(json.dumps(_json(check_run, code), indent=2, ensure_ascii=False))
