@@ -82,3 +82,56 @@ def test_shallow_clone_and_empty_repo(renamed, tmp_path):
     empty = ScriptedRepo(tmp_path / "empty")
     assert not Repo(empty.root).has_commits()
     assert Repo.find(tmp_path / "not-a-repo-folder") is None  # pytest's tmp is outside git
+
+
+def test_revisions_merge_design_and_library_commits(tmp_path):
+    """Design commits (following the rename) and library-page commits, newest first; library
+    commits before the design existed are not part of its history."""
+    from docgen.history.revisions import list_revisions
+
+    script = ScriptedRepo(tmp_path / "repo")
+    script.write("designs/library/parts.md", "v1\n")
+    early = script.commit("library before the design")
+    script.write("designs/a.md", "one\n")
+    added = script.commit("add a")
+    script.write("designs/library/parts.md", "v2\n")
+    library = script.commit("library tweak")
+    script.move("designs/a.md", "designs/b.md")
+    script.write("designs/library/parts.md", "v3\n")
+    both = script.commit("rename a and tweak the library")
+    listing = list_revisions(Repo(script.root), "designs/b.md", ("designs/library/parts.md",))
+    assert listing.available
+    rows = [(r.commit.sha, r.path, r.reason, r.library_paths) for r in listing.revisions]
+    assert rows == [
+        (both, "designs/b.md", "design", ("designs/library/parts.md",)),
+        (library, "designs/a.md", "library", ("designs/library/parts.md",)),
+        (added, "designs/a.md", "design", ()),
+    ]
+    assert early not in [r[0] for r in rows]
+    assert listing.revisions[0].to_json()["reason"] == "design"
+
+
+def test_revisions_unavailable_reasons(renamed, tmp_path):
+    from docgen.history.revisions import list_revisions
+
+    script, _ = renamed
+    clone = tmp_path / "clone"
+    subprocess.run(["git", "clone", "-q", "--depth", "1", f"file://{script.root}", str(clone)],
+                   env=git_env(), check=True)
+    shallow = list_revisions(Repo(clone), "designs/sub/b.md")
+    assert not shallow.available and "shallow clone" in shallow.unavailable
+    assert "not in a git repository" in list_revisions(None, "designs/x.md").unavailable
+    empty = ScriptedRepo(tmp_path / "empty")
+    assert "no commits" in list_revisions(Repo(empty.root), "x.md").unavailable
+    script.write("designs/new.md", "n\n")
+    assert "not been committed" in list_revisions(Repo(script.root),
+                                                  "designs/new.md").unavailable
+
+
+def test_read_many_matches_show(renamed):
+    script, expected = renamed
+    repo = Repo(script.root)
+    paths = ["designs/other.md", "designs/missing.md", "designs/sub/b.md"]
+    found = repo.read_many(expected[0], paths)
+    assert found == {p: repo.show(expected[0], p) for p in paths if repo.show(expected[0], p)}
+    assert found["designs/sub/b.md"] == b"one\ntwo\nthree\n"

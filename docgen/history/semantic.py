@@ -50,7 +50,7 @@ def diff_designs(
         "header": diff_header(old, new),
         "metrics": diff_metrics(old_results, new_results),
         "verdicts": flipped_verdicts(old_results, new_results),
-        "text": text_diff(old, new, labels),
+        "text": text_diff(old.path, old.source, new.path, new.source, labels),
     }
     result["changed"] = sorted(section for section in
                                ("parts", "models", "requirements", "bench", "header")
@@ -274,13 +274,14 @@ def flipped_verdicts(old: Mapping[str, Any] | None, new: Mapping[str, Any] | Non
             for metric in after if metric in before and before[metric] != after[metric]]
 
 
-def text_diff(old: Design, new: Design, labels: tuple[str, str] = ("before", "after")) -> str:
-    """The unified diff of the two sources (empty when the text is the same)."""
+def text_diff(old_path: str, old_source: str, new_path: str, new_source: str,
+              labels: tuple[str, str] = ("before", "after")) -> str:
+    """The unified diff of two sources (empty when the text is the same)."""
     lines = difflib.unified_diff(
-        old.source.splitlines(keepends=True),
-        new.source.splitlines(keepends=True),
-        fromfile=f"{old.path} ({labels[0]})",
-        tofile=f"{new.path} ({labels[1]})",
+        old_source.splitlines(keepends=True),
+        new_source.splitlines(keepends=True),
+        fromfile=f"{old_path} ({labels[0]})",
+        tofile=f"{new_path} ({labels[1]})",
     )
     return "".join(line if line.endswith("\n") else line + "\n" for line in lines)
 

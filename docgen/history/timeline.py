@@ -1,0 +1,75 @@
+"""A design's history: one row per revision with its headline figures and verdicts, and the
+semantic diff between each pair of consecutive revisions.
+
+Everything returned is plain JSON-serialisable data; the pages and ``docgen history`` render
+it.  Each revision's results come from :class:`~docgen.history.snapshot.RevisionSolver`, so a
+revision is solved once, ever.
+"""
+
+from __future__ import annotations
+
+from typing import Any
+
+from docgen.history.git import Repo
+from docgen.history.headline import headline_figures, verdict_counts, verdicts
+from docgen.history.revisions import Revision, list_revisions, unavailable_reason
+from docgen.history.semantic import diff_designs, text_diff
+from docgen.history.snapshot import RevisionSolver, Snapshot, snapshot
+
+Json = dict[str, Any]
+
+
+def design_history(repo: Repo | None, rel: str, designs_root: str, solver: RevisionSolver,
+                   *, with_diffs: bool = True) -> Json:
+    """The history of the design at ``rel`` (relative to the repository root), newest first.
+
+    :returns: ``{"path", "available", "unavailable", "rows": [...], "diffs": [...]}``; each row
+        is a revision with ``status``, ``approved``, ``figures``, ``verdicts``, ``passed``,
+        ``total`` and ``errors``; ``diffs[i]`` compares row ``i + 1`` (older) with row ``i``.
+    """
+    reason = unavailable_reason(repo)
+    if reason is not None or repo is None:
+        return {"path": rel, "available": False, "unavailable": reason, "rows": [], "diffs": []}
+    current = snapshot(repo, None, rel, designs_root)
+    listing = list_revisions(repo, rel, current.uses)
+    if not listing.available:
+        return {"path": rel, "available": False, "unavailable": listing.unavailable,
+                "rows": [], "diffs": []}
+    snaps = [snapshot(repo, r.commit.sha, r.path, designs_root) for r in listing.revisions]
+    results = [solver.results(s) for s in snaps]
+    rows = [revision_row(r, s, res) for r, s, res in zip(listing.revisions, snaps, results,
+                                                          strict=True)]
+    diffs = []
+    if with_diffs:
+        for i in range(len(snaps) - 1):
+            diffs.append(revision_diff(snaps[i + 1], snaps[i], results[i + 1], results[i]))
+    return {"path": rel, "available": True, "unavailable": None, "rows": rows, "diffs": diffs}
+
+
+def revision_row(revision: Revision, snap: Snapshot, results: Json) -> Json:
+    """One row of the history table."""
+    header = snap.design.header if snap.design else None
+    return {
+        **revision.to_json(),
+        "title": header.title if header else None,
+        "status": header.status if header else None,
+        "approved": header.approved if header else None,
+        "key": snap.key,
+        "figures": headline_figures(results),
+        "verdicts": verdicts(results),
+        **verdict_counts(results),
+        "errors": len(results.get("errors") or []),
+    }
+
+
+def revision_diff(old: Snapshot, new: Snapshot, old_results: Json | None,
+                  new_results: Json | None) -> Json:
+    """The semantic diff between two snapshots, with their labels (``None`` sides → text only)."""
+    labels = (old.label, new.label)
+    if old.design is None or new.design is None:
+        return {"labels": list(labels), "paths": [old.path, new.path], "readable": False,
+                "text": text_diff(old.path, old.source, new.path, new.source, labels)}
+    diff = diff_designs(old.design, new.design, old_results, new_results,
+                        old_library=old.library, new_library=new.library, labels=labels)
+    return {"labels": list(labels), "readable": True, **diff}
+
