@@ -17,7 +17,7 @@ from docgen.reader.circuit import report_quantity
 from docgen.reader.lexer import SourceLine, read_lines
 from docgen.units import QuantityError, parse_quantity
 
-LIMIT_UNITS = ("", "dB", "Hz", "V", "A", "Ω", "W", "%", "°", "s", "°C", "F", "H")
+LIMIT_UNITS = ("", "dB", "Hz", "V", "A", "Ω", "W", "%", "°", "s", "°C", "F", "H", "V/√Hz")
 ACROSS: dict[str, tuple[str, ...]] = {
     "boards": ("boards",),
     "temperature": ("temperature",),
