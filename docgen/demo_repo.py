@@ -168,8 +168,9 @@ def make_demo_repo(path: str | Path = DEFAULT_PATH, source: str | Path = DEFAULT
     """Create a fresh git repository at ``path`` replaying the demo history; return its path.
 
     The repository has one branch, ``main``, whose ``designs/`` folder ends as ``source``
-    except for one change after approval (the preamp's input capacitor).  An existing folder at ``path`` is replaced,
-    but only if it is empty or a repository this function made (it has ``.demo-repo``).
+    except for one change after approval (the preamp's input capacitor).  An existing folder
+    at ``path`` is replaced, but only if it is empty or a repository this function made (it
+    has ``.demo-repo``).
     """
     repo, source = Path(path), Path(source)
     if not (source / "library").is_dir():
