@@ -51,13 +51,14 @@ def diag_json(diagnostics: list[Diagnostic] | list[dict[str, Any]]) -> list[dict
     return [d.to_json() if isinstance(d, Diagnostic) else d for d in diagnostics]
 
 
-def prose(entry: PageEntry, page: str, site: SiteContext, live: Any) -> RenderedProse:
+def prose(entry: PageEntry, page: str, site: SiteContext, live: Any,
+          heading_shift: int = 0) -> RenderedProse:
     """The page's Markdown rendered for ``page``."""
     text = entry.design.source if entry.design is not None else entry.source.decode(
         "utf-8", errors="replace")
     targets = ProseTargets(site.pages, site.sources, site.files)
     return render_prose(text, source_rel=entry.source_rel, page=page, targets=targets,
-                        live=live, display_path=entry.path)
+                        live=live, display_path=entry.path, heading_shift=heading_shift)
 
 
 def models_table(models: tuple[ModelDef, ...] | list[ModelDef]) -> dict[str, Any] | None:
@@ -129,7 +130,7 @@ def design_context(entry: PageEntry, bundle: dict[str, Any], page: str,
     design = entry.design
     assert design is not None
     results = bundle.get("results")
-    notes = prose(entry, page, site, verdicts.live_values(design, results))
+    notes = prose(entry, page, site, verdicts.live_values(design, results), heading_shift=1)
     header = design.header
     replaced = None
     if header.replaced_by:
@@ -234,7 +235,7 @@ def index_row(entry: PageEntry, bundle: dict[str, Any], page: str, site: SiteCon
         "href": page, "title": design.header.title or entry.source_rel,
         "summary": design.header.summary, "status": design.header.status,
         "approved": design.header.approved, "owner": design.header.owner,
-        "last_change": site.last_change.get(entry.source_rel),
+        "last_change": (site.last_change.get(entry.source_rel) or "").split(",")[0],
         "headline": headline(results), "met": _met_text(design, results),
         "met_class": "met-some" if failing else ("met-all" if total and met == total else ""),
         "cautions": f"{len(counted)} caution(s)" if counted else "",

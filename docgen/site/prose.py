@@ -89,22 +89,26 @@ def _parser() -> MarkdownIt:
     md.add_render_rule("link_open", _render_link_open)
     md.add_render_rule("link_close", _render_link_close)
     md.add_render_rule("image", _render_image)
+    md.add_render_rule("heading_open", _render_heading)
+    md.add_render_rule("heading_close", _render_heading)
     return md
 
 
 def render_prose(text: str, *, source_rel: str, page: str, targets: ProseTargets,
                  live: Callable[[str], LiveValue] | None,
-                 display_path: str | None = None) -> RenderedProse:
+                 display_path: str | None = None, heading_shift: int = 0) -> RenderedProse:
     """Render one page's Markdown (header removed) to HTML for the site page at ``page``.
 
     :param display_path: the file path diagnostics name (default ``source_rel``).
+    :param heading_shift: levels to demote headings by (a design page's notes sit under the
+        page title, so their ``#`` becomes ``h2``).
     """
     body = blank_header(text)
     lines = body.split("\n")
     md = _parser()
     out = RenderedProse("")
     shown = display_path or source_rel
-    env = {"live": live, "out": out, "source_rel": shown}
+    env = {"live": live, "out": out, "source_rel": shown, "heading_shift": heading_shift}
     tokens = md.parse(body, env)
     for token in tokens:
         if token.type == "inline" and token.children:
@@ -212,6 +216,12 @@ def _render_code_inline(self, tokens, idx, options, env) -> str:  # noqa: ANN001
     label = "unknown metric" if value.unknown else "not computed"
     return (f'<span class="live live-missing" title="{escapeHtml(value.problem or "")}">'
             f"[{label}: {escapeHtml(metric)}]</span>")
+
+
+def _render_heading(self, tokens, idx, options, env) -> str:  # noqa: ANN001
+    token = tokens[idx]
+    level = min(6, int(token.tag[1]) + env.get("heading_shift", 0))
+    return f"<h{level}>" if token.nesting == 1 else f"</h{level}>\n"
 
 
 def _render_link_open(self, tokens, idx, options, env) -> str:  # noqa: ANN001
