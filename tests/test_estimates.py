@@ -186,3 +186,34 @@ def test_parser_builds_no_python_objects_beyond_tuples() -> None:
         node = stack.pop()
         assert isinstance(node, tuple)
         stack.extend(x for x in node if isinstance(x, tuple))
+
+
+def test_end_to_end_through_the_pipeline(tmp_path) -> None:
+    """A divider solved by the real solver against the divider formula VA·R2/(R1 + R2)
+    (Ohm's law); the results validate against the project's JSON Schema (jsonschema)."""
+    import json
+    from importlib import resources
+
+    import jsonschema
+
+    from docgen import pipeline
+    from docgen.record import load_record
+
+    (tmp_path / "d.md").write_text(
+        "---\ntitle: divider\n---\n\n```circuit\nVA supply 10 V : vcc gnd\n"
+        "R1 resistor 3k 1% 0.25 W : vcc mid\nR2 resistor 1k 1% 0.25 W : mid gnd\n```\n\n"
+        "```estimate\nvoltage at mid ≈ VA * R2 / (R1 + R2)\nR1 power ≈ (VA - [voltage at mid])^2"
+        " / R1\nvoltage at mid ≈ VA / 2   # a wrong guess\n```\n", encoding="utf-8")
+    record = load_record(str(tmp_path))
+    design = record.designs[0]
+    results = pipeline.run(design, record.models_for(design),
+                           only=frozenset({"op", "estimates"}))
+    divider, power, guess = results["estimates"]
+    assert divider["estimate"] == pytest.approx(2.5) and abs(divider["error_percent"]) < 1e-6
+    assert power["estimate"] == pytest.approx(7.5 ** 2 / 3000)
+    assert abs(power["error_percent"]) < 1e-6
+    assert guess["error_percent"] == pytest.approx(100.0, rel=1e-6)  # 5 V against 2.5 V
+    assert (guess["line"], guess["col"]) == (14, 1)
+    schema = json.loads(resources.files("docgen").joinpath("schema/results.schema.json")
+                        .read_text(encoding="utf-8"))
+    jsonschema.validate(json.loads(json.dumps(results)), schema)
