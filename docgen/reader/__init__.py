@@ -6,6 +6,6 @@ carrying every diagnostic of the file.  One module per block (``circuit``, ``mod
 checks (``wiring``).
 """
 
-from docgen.reader.page import BLOCK_TAGS, find_blocks, read_file, read_text
+from docgen.reader.page import BLOCK_TAGS, find_blocks, page_blocks, read_file, read_text
 
-__all__ = ["BLOCK_TAGS", "find_blocks", "read_file", "read_text"]
+__all__ = ["BLOCK_TAGS", "find_blocks", "page_blocks", "read_file", "read_text"]

@@ -52,6 +52,15 @@ def find_blocks(file_lines: list[str], text: str) -> list[FoundBlock]:
     return found
 
 
+def page_blocks(text: str) -> list[FoundBlock]:
+    """The fenced blocks of a page's text, the ``---`` header skipped (for tools like neaten)."""
+    file_lines = text.splitlines()
+    end = header_end(file_lines)
+    if end is None or end == -1:
+        return find_blocks(file_lines, "\n".join(file_lines))
+    return find_blocks(file_lines, "\n".join([""] * (end + 1) + file_lines[end + 1:]))
+
+
 def read_text(text: str, path: str = "<text>") -> Design:
     """Read one page; raise :class:`InputError` with every diagnostic if any is an error.
 
@@ -86,8 +95,8 @@ def _file_problem(path: str, message: str) -> Diagnostic:
 
 
 def _read(text: str, file_lines: list[str], path: str, collector: Collector) -> Design:
-    header, body = _header(file_lines, collector)
-    blocks = find_blocks(file_lines, body)
+    header = _header(file_lines, collector)
+    blocks = page_blocks(text)
     circuits = [b for b in blocks if b.tag == "circuit"]
     models_blocks = [b for b in blocks if b.tag == "models"]
     kind = "design" if circuits else ("library" if models_blocks else "note")
@@ -113,18 +122,15 @@ def _read(text: str, file_lines: list[str], path: str, collector: Collector) -> 
     )
 
 
-def _header(file_lines: list[str], collector: Collector) -> tuple[Header, str]:
-    """The header and the page text with the header blanked (line numbers stay the same)."""
+def _header(file_lines: list[str], collector: Collector) -> Header:
     end = header_end(file_lines)
     if end is None:
-        return Header(), "\n".join(file_lines)
+        return Header()
     if end == -1:
         collector.add(Span(1, 1, 3), "the header opened by '---' on line 1 is never closed",
                       hint="end the header with a line '---'")
-        return Header(), "\n".join(file_lines)
-    header = read_header(file_lines, end, collector)
-    body = "\n".join([""] * (end + 1) + file_lines[end + 1:])
-    return header, body
+        return Header()
+    return read_header(file_lines, end, collector)
 
 
 def _bench(blocks: list[FoundBlock], kind: str, collector: Collector) -> Bench:
