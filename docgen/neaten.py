@@ -1,7 +1,7 @@
 """The canonical layout of a page's blocks, so that diffs between revisions show real changes.
 
 Per block, the columns are aligned (two spaces between columns), every field is spelled with
-single spaces inside, trailing comments line up one column after the longest line that has one,
+single spaces inside, trailing comments line up in one column after the block's longest line,
 whole-line comments and blank lines stay, and every value keeps the spelling its author chose
 (``4k7`` stays ``4k7``).  Prose outside the blocks is untouched.  Neatening is idempotent.
 """
@@ -77,8 +77,7 @@ def _layout(lines: list[SourceLine], splitter: Splitter) -> list[str]:
     rows = [None if line.is_blank else splitter(line) for line in lines]
     widths = _widths([r[0] for r in rows if r is not None])
     bodies = [_body(row, widths) if row is not None else "" for row in rows]
-    comment_at = max((len(b) for b, line in zip(bodies, lines, strict=True)
-                      if line.comment and b), default=0)
+    comment_at = max((len(b) for b in bodies), default=0)
     out = []
     for body, line in zip(bodies, lines, strict=True):
         prefix = line.text[: line.indent]
