@@ -48,33 +48,91 @@ class Snapshot:
     source: str
 
 
-def snapshot(repo: Repo, rev: str | None, path: str, designs_root: str) -> Snapshot:
-    """Read the design at ``path`` as it was at ``rev`` (``None``: as it is in the work tree).
+class Tree:
+    """Every page of the designs folder at one revision (or in the work tree), read once.
 
+    :param rev: a full commit id, or ``None`` for the work tree.
     :param designs_root: the designs folder (relative to the repository root) whose library
-        pages the design may use.
+        pages the designs may use.
     """
-    texts = _texts_at(repo, rev, designs_root)
-    if path not in texts:  # a design kept outside the designs folder
-        texts.update(_read(repo, rev, [path]))
-    label = WORK_TREE if rev is None else rev[:10]
-    if path not in texts:
-        return Snapshot(label, rev, path, None, {}, (), None, (), "")
-    from docgen.record import load_texts
 
-    decoded = {p: data.decode("utf-8", "replace") for p, data in texts.items()}
-    record = load_texts(designs_root, decoded)
-    diagnostics = tuple(record.diagnostics.get(path, ()))
-    try:
-        design = record.page(path)
-    except KeyError:
-        design = None
-    if design is None or record.has_errors(path):
-        return Snapshot(label, rev, path, None, {}, (), None, diagnostics, decoded[path])
-    uses = tuple(record.uses.get(path, ()))
-    key = cache_key(texts[path], [texts[p] for p in uses])
-    return Snapshot(label, rev, path, design, record.library, uses, key, diagnostics,
-                    decoded[path])
+    def __init__(self, repo: Repo, rev: str | None, designs_root: str):
+        self.repo, self.rev, self.designs_root = repo, rev, designs_root
+        self.label = WORK_TREE if rev is None else rev[:10]
+        self.texts = _texts_at(repo, rev, designs_root)
+        self._record: Any = None
+
+    @property
+    def record(self) -> Any:
+        """The :class:`docgen.record.Record` of these pages (read on first use)."""
+        if self._record is None:
+            from docgen.record import load_texts
+
+            decoded = {p: data.decode("utf-8", "replace") for p, data in self.texts.items()}
+            self._record = load_texts(self.designs_root, decoded)
+        return self._record
+
+    def design_paths(self) -> list[str]:
+        """The design pages of this tree (read cleanly or not), sorted."""
+        record = self.record
+        good = {p.path for p in record.pages if p.kind == "design"}
+        broken = {p for p in record.diagnostics if record.has_errors(p)}
+        return sorted(good | {p for p in broken if _has_circuit(self._text(p))})
+
+    def _text(self, path: str) -> str:
+        return self.texts.get(path, b"").decode("utf-8", "replace")
+
+    def snapshot(self, path: str) -> Snapshot:
+        """The design at ``path`` in this tree."""
+        if path not in self.texts:  # a design kept outside the designs folder
+            extra = _read(self.repo, self.rev, [path])
+            if not extra:
+                return Snapshot(self.label, self.rev, path, None, {}, (), None, (), "")
+            self.texts.update(extra)
+            self._record = None
+        record = self.record
+        diagnostics = tuple(record.diagnostics.get(path, ()))
+        source = self._text(path)
+        try:
+            design = None if record.has_errors(path) else record.page(path)
+        except KeyError:
+            design = None
+        if design is None:
+            return Snapshot(self.label, self.rev, path, None, {}, (), None, diagnostics, source)
+        uses = tuple(record.uses.get(path, ()))
+        key = cache_key(self.texts[path], [self.texts[p] for p in uses])
+        return Snapshot(self.label, self.rev, path, design, record.library, uses, key,
+                        diagnostics, source)
+
+
+def _has_circuit(text: str) -> bool:
+    """True for a page with a ``circuit`` block (a design page, even one that fails to read)."""
+    from docgen.reader import find_blocks
+
+    return any(b.tag == "circuit" for b in find_blocks(text.splitlines(), text))
+
+
+def tree(repo: Repo, rev: str | None, designs_root: str) -> Tree:
+    """The :class:`Tree` at ``rev``; trees of commits are kept for the process (they never
+    change), so a commit shared by several designs' histories is read once."""
+    if rev is None:
+        return Tree(repo, None, designs_root)
+    key = (str(repo.root), rev, designs_root)
+    found = _TREES.get(key)
+    if found is None:
+        found = _TREES[key] = Tree(repo, rev, designs_root)
+        while len(_TREES) > _TREES_KEPT:
+            _TREES.pop(next(iter(_TREES)))
+    return found
+
+
+_TREES: dict[tuple[str, str, str], Tree] = {}
+_TREES_KEPT = 256
+
+
+def snapshot(repo: Repo, rev: str | None, path: str, designs_root: str) -> Snapshot:
+    """Read the design at ``path`` as it was at ``rev`` (``None``: as it is in the work tree)."""
+    return tree(repo, rev, designs_root).snapshot(path)
 
 
 def _texts_at(repo: Repo, rev: str | None, folder: str) -> dict[str, bytes]:
@@ -139,6 +197,18 @@ def unreadable_results(snap: Snapshot) -> dict[str, Any]:
     return {"schema": "docgen-results/1", "design": None, "errors": errors}
 
 
-def repo_path(repo: Repo, path: str | Path) -> str:
-    """``path`` (as the user typed it, relative to the current folder) relative to the repo."""
-    return repo.relative(path)
+def open_repo(designs: str | Path) -> tuple[Repo | None, str]:
+    """The repository holding the designs folder ``designs`` (as the user typed it) and that
+    folder relative to the repository root (``designs`` as given when outside git)."""
+    repo = Repo.find(Path(designs))
+    if repo is None:
+        return None, Path(designs).as_posix()
+    try:
+        return repo, repo.relative(designs)
+    except ValueError:
+        return repo, Path(designs).as_posix()
+
+
+def solver_for(repo: Repo) -> RevisionSolver:
+    """The solver backed by the repository's own cache folder."""
+    return RevisionSolver(ResultsCache.for_repo(repo.root))
