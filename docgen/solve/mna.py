@@ -171,6 +171,11 @@ def _resistance_at(values: Mapping[str, Array], temperature_c: Array) -> Array:
     return values["value"] * (1.0 + values["tempco"] * (temperature_c - 25.0))
 
 
+def resistance_at(values: Mapping[str, Array], temperature_c: Array) -> Array:
+    """A resistor's resistance at ``temperature_c`` (its tempco is linear about 25 °C)."""
+    return _resistance_at(values, temperature_c)
+
+
 def _conductance_stamp(g: Array) -> Array:
     return np.stack([np.stack([g, -g], -1), np.stack([-g, g], -1)], -2)
 
@@ -451,6 +456,7 @@ def assemble(
     state: Mapping[str, Array],
     source_scale: Array | float = 1.0,
     node_gmin: Array | float = 0.0,
+    limiting: bool = True,
 ) -> tuple[Array, Array, dict[str, Array], Array]:
     """The linearised system ``A·x_next = b`` at ``x`` (shapes ``(S, M, M)`` and ``(S, M)``).
 
@@ -458,6 +464,9 @@ def assemble(
     :param source_scale: factor on every independent source, scalar or ``(S,)`` (source
         stepping).
     :param node_gmin: conductance from every node to ground, scalar or ``(S,)`` (gmin stepping).
+    :param limiting: ``False`` linearises every device exactly at ``x`` (no junction or output
+        stage limiting): at a converged ``x`` the matrix is then the small-signal conductance
+        matrix the response and noise analyses start from.
     :returns: matrix, right-hand side, new limiting state, and a ``(S,)`` flag that is true where
         junction limiting changed a voltage (the step cannot be trusted as converged).
     """
@@ -470,7 +479,7 @@ def assemble(
     for device in problem.circuit.devices:
         ctx = _StampContext(problem, device, problem.values[device.name],
                             problem.layout.local[device.name], x_full, state, new_state,
-                            limited, system, scale)
+                            limited, system, scale, limiting)
         STAMPS[device.kind](ctx)
     nodes = np.arange(problem.layout.node_count)
     gmin = np.broadcast_to(np.asarray(node_gmin, dtype=float), (samples,))
