@@ -13,6 +13,8 @@ import types
 
 import pytest
 import scipy.constants as sc
+from hypothesis import given, settings
+from hypothesis import strategies as st
 
 from docgen.check import estimates, expressions
 from docgen.check.expressions import ExpressionError
@@ -217,3 +219,27 @@ def test_end_to_end_through_the_pipeline(tmp_path) -> None:
     schema = json.loads(resources.files("docgen").joinpath("schema/results.schema.json")
                         .read_text(encoding="utf-8"))
     jsonschema.validate(json.loads(json.dumps(results)), schema)
+
+
+_PIECES = ["RL1", "RD", "Q1", ".", "beta", "(", ")", "[", "]", "+", "-", "*", "/", "^", ",",
+           "parallel", "sqrt", "dB", "1", "4k7", "1e300", "0", "VT", "midband gain", "_", "'",
+           "≈", " "]
+
+
+@given(st.lists(st.sampled_from(_PIECES), max_size=25).map("".join) | st.text(max_size=60))
+@settings(max_examples=600, deadline=None)
+def test_any_text_reads_or_gives_a_diagnostic(text: str) -> None:
+    """Property: an estimate line never raises anything but a diagnostic (or, when it reads,
+    ExpressionError on evaluation), and every diagnostic points inside the line."""
+    line = f"midband gain ≈ {text}"
+    if len(line.splitlines()) != 1 or "#" in line or "`" in line:
+        return  # one block line; a line break, comment or fence would start something else
+    design = _design([line])
+    read, problems = estimates.read(design, {})
+    for problem in problems:
+        assert problem.line == 3 and 1 <= problem.col <= len(line) + 1
+    for estimate in read:
+        try:
+            estimates.value_of(design, {}, {}, estimate)
+        except ExpressionError as exc:
+            assert 1 <= exc.col <= len(line) + 1

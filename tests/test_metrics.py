@@ -10,6 +10,8 @@ import math
 
 import numpy as np
 import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
 from scipy import signal
 
 from docgen.metric_values import band_rms, evaluate, samples
@@ -180,3 +182,22 @@ def test_drift_and_samples_read_the_spread_sections() -> None:
     assert samples(metric, results, "temperature")[0] == [0.9e-3, 1e-3, 1.2e-3]
     values, reason = samples(parse("midband gain"), results, "boards")
     assert values is None and "midband gain" in reason
+
+
+# Words of the vocabulary plus noise, so generated texts come close to real metrics.
+_WORDS = sorted({w for f in FORMS for w in f.words if not w.startswith("{")}
+                | {"Q1", "c1", "1", "kHz", "20", "Hz", "..", "mV", "rms", "pp", "at", "1k", "-",
+                   "µ", "%", "é", "\t"})
+
+
+@given(st.lists(st.sampled_from(_WORDS), max_size=8).map(" ".join) | st.text(max_size=40))
+@settings(max_examples=600, deadline=None)
+def test_parse_raises_only_metric_errors_with_a_real_column(text: str) -> None:
+    """Property: any text either parses or raises MetricError pointing inside (or just after)
+    the text; never another exception."""
+    try:
+        metric = parse(text)
+    except MetricError as exc:
+        assert 1 <= exc.col <= len(text) + 1
+        return
+    assert parse(metric.key).key == metric.key  # the canonical spelling reads back the same
