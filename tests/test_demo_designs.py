@@ -146,3 +146,17 @@ def test_one_e12_step_of_the_key_part_breaks_a_requirement(name: str, part: str,
             pytest.skip(f"nothing broke among the computed requirements; not computed: "
                         f"{untested}")
     assert broken, f"{part} → {moved:g} broke nothing: {after}"
+
+
+@pytest.mark.parametrize("name", DESIGN_FILES)
+def test_hand_estimates_in_the_notes_agree_with_the_solver(name: str) -> None:
+    """Each design's ``estimate`` lines are the textbook hand formulas of its notes (Sedra &
+    Smith, *Microelectronic Circuits*: divider bias, degenerated gain, follower output
+    impedance, non-inverting gain, RC corners; from memory).  Hand analysis lands within 10 %
+    of the exact solution (common practice)."""
+    rows = solved(name).get("estimates", [])
+    assert rows, "every design shows its hand analysis"
+    for row in rows:
+        assert row.get("reason") is None or row["reason"].startswith("not computed"), row
+        if row["error_percent"] is not None:
+            assert abs(row["error_percent"]) < 10, row
