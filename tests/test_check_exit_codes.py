@@ -136,8 +136,11 @@ def test_only_the_needed_analyses_run(tmp_path: Path, capsys) -> None:
 
 def test_notes_are_printed_on_request(tmp_path: Path, capsys) -> None:
     (tmp_path / "n.md").write_text("---\ntitle: n\n---\n```circuit\nVA supply 5 V : vcc gnd\n"
-                                   "R1 resistor 1k : vcc gnd\n```\n", encoding="utf-8")
+                                   "R1 resistor 1k : vcc gnd\n```\n```estimate\n"
+                                   "R1 current ≈ VA / R1 / 2\n```\n", encoding="utf-8")
     code, out = _check(tmp_path, capsys)
     assert code == 0 and "note:" not in out
     code, out = _check(tmp_path, capsys, "--notes")
     assert "n.md:6:1: note: R1 has no power rating" in out
+    # Ohm's law: 5 V / 1 kΩ = 5 mA; the halved estimate is 50 % low
+    assert "n.md:9:1: note: estimate R1 current ≈ 2.5 mA, solved 5 mA (error -50 %)" in out

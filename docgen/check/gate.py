@@ -72,6 +72,19 @@ def verdict_message(row: Mapping[str, Any]) -> str:
     return text
 
 
+def estimate_message(row: Mapping[str, Any]) -> str:
+    """One line: the hand estimate beside the solved value, with the error."""
+    unit = row["unit"]
+    text = f"estimate {row['metric']} ≈ {_number(row.get('estimate'), unit)}"
+    if row.get("solved") is not None:
+        text += f", solved {_number(row['solved'], unit)}"
+    if row.get("error_percent") is not None:
+        text += f" (error {row['error_percent']:+.3g} %)"
+    elif row.get("reason"):
+        text += f" ({row['reason']})"
+    return text
+
+
 def caution_severity(caution: Mapping[str, Any], status: str) -> str | None:
     """The diagnostic severity of a caution on a page of ``status`` (None: a note only)."""
     if caution["severity"] == "info":
@@ -120,6 +133,10 @@ def check_design(design: Design, library: Mapping[str, ModelDef]) -> GateResult:
         else:
             gate.diagnostics.append(_at(design, caution["line"], caution["col"], severity,
                                         caution["message"]))
+    for row in results.get("estimates", ()):
+        if row.get("metric") is not None:
+            gate.notes.append(f"{design.path}:{row['line']}:{row['col']}: note: "
+                              + estimate_message(row))
     gate.report.update(checks=results.get("checks", []), cautions=results.get("cautions", []),
                        estimates=results.get("estimates", []),
                        analyses=sorted(k for k in results if k not in ("schema", "design")))

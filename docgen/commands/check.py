@@ -62,7 +62,8 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
                         f"(default: {DEFAULT_ROOT}/ if it exists); may be repeated")
     parser.add_argument("--json", action="store_true", help="print one JSON document")
     parser.add_argument("--notes", action="store_true",
-                        help="also print notes (parts with no rating or tolerance to check)")
+                        help="also print notes: hand estimates beside the solved values, "
+                        "parts with no rating or tolerance to check")
 
 
 def load(paths: list[str], library: list[str] | None = None) -> CheckRun:
