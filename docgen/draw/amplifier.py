@@ -1,0 +1,265 @@
+"""The amplifier-aware layout: how an analog engineer arranges a discrete stage by hand.
+
+Rows, from the top: positive-rail symbols; the *upper* row (parts between a positive rail and a
+node, vertical); the *middle* row (transistors upright, op-amps, and parts between two signal
+nodes lying horizontal, e.g. coupling capacitors); the *lower* row (parts between a node and
+ground or a negative rail, vertical); ground symbols on one baseline.  Parts that feed a later
+node back to an earlier one lie horizontally above the stage; supplies stand at the right.
+
+Left to right follows the signal: middle-row parts are ordered by their distance from the input
+net.  Each node's vertical parts stand in a *slot* just before the first part that takes its
+signal from that node (bias divider between coupling capacitor and base), except that the first
+part on a collector/drain or emitter/source stands directly above or below that pin.
+"""
+
+from __future__ import annotations
+
+import math
+
+from docgen.design import Design, Part
+from docgen.draw import classify
+from docgen.draw.hints import Hints
+from docgen.draw.placement import LABEL_GAP, Placed, Placement
+from docgen.draw.route import PITCH
+
+UPPER_Y = 4.0
+LOWER_Y = -4.0
+TOP_LEVEL = 5.5
+BOTTOM_LEVEL = -5.5
+GAP = 1.0
+FEEDBACK_Y = 7.5
+OPAMP_FEEDBACK_Y = 3.0
+RAIL_ORDER = {"up": 2, "ground": 1, "down": 0}
+
+
+def label(placed: Placed) -> Placed:
+    """Give a placed part its label text and a spot beside its body."""
+    part = placed.part
+    value = classify.value_text(part)
+    x, y = placed.origin
+    body = placed.body()
+    if part.kind == "opamp":
+        placed.label = f"{part.name}\n{value}".strip()
+        placed.label_at, placed.label_align = (x + 1.8, y - 0.35), ("left", "top")
+    elif part.kind in classify.ACTIVE:
+        placed.label = f"{part.name}\n{value}".strip()
+        gap = LABEL_GAP + 0.2
+        if placed.orientation == "mirrored":
+            placed.label_at, placed.label_align = (body[0] - gap, y), ("right", "center")
+        else:
+            placed.label_at, placed.label_align = (body[2] + gap, y), ("left", "center")
+    elif placed.orientation in ("left", "right"):
+        placed.label = f"{part.name} {value}".strip()
+        placed.label_at, placed.label_align = ((body[0] + body[2]) / 2, body[3] + 0.15), (
+            "center", "bottom")
+    else:
+        placed.label = f"{part.name}\n{value}".strip()
+        placed.label_at, placed.label_align = (body[2] + LABEL_GAP, (body[1] + body[3]) / 2), (
+            "left", "center")
+    return placed
+
+
+def place(part: Part, orientation: str, origin: tuple[float, float]) -> Placed:
+    """A labelled part at ``origin`` (moved up/right onto the wiring grid)."""
+    snapped = (math.ceil(origin[0] / PITCH - 1e-9) * PITCH,
+               math.ceil(origin[1] / PITCH - 1e-9) * PITCH)
+    return label(Placed(part, orientation, snapped))
+
+
+def extent(placed: Placed) -> tuple[float, float]:
+    """Leftmost and rightmost x of a part with its label and pins."""
+    boxes = [placed.keepout(), placed.label_box()]
+    xs = [p[0] for p, _ in placed.pins().values()]
+    return (min(min(b[0] for b in boxes), *xs), max(max(b[2] for b in boxes), *xs))
+
+
+def shift(placed: Placed, dx: float, dy: float = 0.0) -> Placed:
+    """The same part moved by (dx, dy)."""
+    return place(placed.part, placed.orientation, (placed.origin[0] + dx, placed.origin[1] + dy))
+
+
+class _Builder:
+    """One run of the amplifier layout over a design."""
+
+    def __init__(self, design: Design, rails: dict[str, str], hints: Hints):
+        self.design = design
+        self.rails = rails
+        self.hints = hints
+        self.ranks = classify.signal_ranks(design, rails)
+        self.upper: dict[str, list[Part]] = {}
+        self.lower: dict[str, list[Part]] = {}
+        self.middle: list[Part] = []
+        self.feedback: list[Part] = []
+        self.rail_parts: list[Part] = []
+        self.placed: list[Placed] = []
+
+    # ---- roles ---------------------------------------------------------------------------
+
+    def sort_roles(self) -> None:
+        for part in self.design.parts:
+            nets = part.nets
+            if part.kind in classify.ACTIVE:
+                self.middle.append(part)
+                continue
+            on_rail = [n for n in nets if n in self.rails]
+            if len(on_rail) == 2 or nets[0] == nets[1]:
+                self.rail_parts.append(part)
+            elif len(on_rail) == 1:
+                node = next(n for n in nets if n not in self.rails)
+                side = self.upper if self.rails[on_rail[0]] == "up" else self.lower
+                side.setdefault(node, []).append(part)
+            elif self._is_feedback(part):
+                self.feedback.append(part)
+            else:
+                self.middle.append(part)
+        self.middle.sort(key=lambda p: (classify.input_rank(p, self.ranks),
+                                        max(self.ranks.get(n, 0) for n in p.nets
+                                            if n in self.ranks)))
+        self.middle = self.hints.order(self.middle)
+
+    def _is_feedback(self, part: Part) -> bool:
+        a, b = part.nets
+        for other in self.design.parts:
+            if other.kind in classify.ACTIVE and {a, b} <= set(other.nets):
+                return True
+        return abs(self.ranks[a] - self.ranks[b]) >= 2 and max(self.ranks[a], self.ranks[b]) < (
+            classify.UNREACHED)
+
+    # ---- orientation ---------------------------------------------------------------------
+
+    def orient(self, part: Part, row: str) -> str:
+        if part.kind in classify.ACTIVE:
+            return "mirrored" if self.hints.mirrored(part.name) else "normal"
+        p, n = part.nets
+        if row == "upper":
+            chosen = "down" if p in self.rails else "up"
+        elif row == "lower":
+            chosen = "down" if n in self.rails else "up"
+        elif row == "rail":
+            chosen = "down" if RAIL_ORDER[self.rails.get(p, "ground")] >= RAIL_ORDER[
+                self.rails.get(n, "ground")] else "up"
+        else:
+            chosen = "right" if self.ranks.get(p, 0) <= self.ranks.get(n, 0) else "left"
+        if self.hints.turned(part.name):
+            chosen = {"down": "up", "up": "down", "right": "left", "left": "right"}[chosen]
+        return chosen
+
+    # ---- placing rows --------------------------------------------------------------------
+
+    def input_nets(self, part: Part) -> set[str]:
+        if part.kind in classify.ACTIVE:
+            return {n for t, n in part.terminals if t in classify.INPUT_TERMINALS}
+        ranked = sorted(part.nets, key=lambda n: self.ranks.get(n, 0))
+        return {ranked[0]}
+
+    def stacks(self, part: Part, placed: Placed, taken: set[str]) -> list[Placed]:
+        """Parts standing straight above/below a transistor's top and bottom pins."""
+        out = []
+        for terminal, (pin, outward) in placed.pins().items():
+            net = part.net(terminal)
+            side, row, y = ((self.upper, "upper", UPPER_Y) if outward == (0, 1)
+                            else (self.lower, "lower", LOWER_Y) if outward == (0, -1)
+                            else (None, "", 0.0))
+            if side is None or net in taken or not side.get(net) or part.kind == "opamp":
+                continue
+            taken.add(net)
+            first = side[net].pop(0)
+            out.append(place(first, self.orient(first, row), (pin[0], y)))
+        return out
+
+    def run(self) -> Placement:
+        self.sort_roles()
+        slots_before: dict[str, list[str]] = {}
+        slots_after: dict[str, list[str]] = {}
+        nets_with_parts = [n for n in self.design.nets if self.upper.get(n) or self.lower.get(n)]
+        for net in nets_with_parts:
+            takers = [p for p in self.middle if net in self.input_nets(p)]
+            touchers = [p for p in self.middle if net in p.nets]
+            if takers:
+                slots_before.setdefault(takers[0].name, []).append(net)
+            elif touchers:
+                slots_after.setdefault(touchers[-1].name, []).append(net)
+        placed_slots: set[str] = set()
+        stacked: set[str] = set()
+        cursor = 0.0
+        for part in self.middle:
+            for net in slots_before.get(part.name, []):
+                cursor = self.slot(net, cursor, placed_slots)
+            cursor = self.middle_part(part, cursor, stacked)
+            for net in slots_after.get(part.name, []):
+                cursor = self.slot(net, cursor, placed_slots)
+        for net in nets_with_parts:
+            cursor = self.slot(net, cursor, placed_slots)
+        for part in self.rail_parts:
+            item = place(part, self.orient(part, "rail"), (0.0, 0.0))
+            left, right = extent(item)
+            self.placed.append(shift(item, cursor - left))
+            cursor += right - left + GAP
+        self.place_feedback()
+        return Placement(self.placed, dict(self.rails), top_level=TOP_LEVEL,
+                         bottom_level=BOTTOM_LEVEL,
+                         free_ports={p.part.name for p in self.placed
+                                     if p.part.kind == "opamp" or p.part in self.rail_parts})
+
+    def middle_part(self, part: Part, cursor: float, stacked: set[str]) -> float:
+        item = place(part, self.orient(part, "middle"), (0.0, 0.0))
+        group = [item, *self.stacks(part, item, stacked)]
+        left = min(extent(p)[0] for p in group)
+        right = max(extent(p)[1] for p in group)
+        self.placed.extend(shift(p, cursor - left) for p in group)
+        return cursor + right - left + GAP
+
+    def slot(self, net: str, cursor: float, done: set[str]) -> float:
+        if net in done:
+            return cursor
+        done.add(net)
+        ups, downs = self.upper.get(net, []), self.lower.get(net, [])
+        for index in range(max(len(ups), len(downs))):
+            column = [place(p, self.orient(p, row), (0.0, y))
+                      for group, row, y in ((ups, "upper", UPPER_Y), (downs, "lower", LOWER_Y))
+                      if index < len(group) for p in [group[index]]]
+            left = min(extent(p)[0] for p in column)
+            right = max(extent(p)[1] for p in column)
+            self.placed.extend(shift(p, cursor - left) for p in column)
+            cursor += right - left + GAP
+        return cursor
+
+    def place_feedback(self) -> None:
+        xs: dict[str, list[float]] = {}
+        for placed in self.placed:
+            for terminal, (pin, _) in placed.pins().items():
+                xs.setdefault(placed.part.net(terminal), []).append(pin[0])
+        for part in self.feedback:
+            a, b = part.nets
+            centre = sum(sum(xs.get(n, [0.0])) / len(xs.get(n, [0.0])) for n in (a, b)) / 2
+            on_opamp = any(o.kind == "opamp" and {a, b} <= set(o.nets) for o in self.design.parts)
+            y = OPAMP_FEEDBACK_Y if on_opamp else FEEDBACK_Y
+            item = place(part, self.orient(part, "feedback"), (round(centre * 2) / 2, y))
+            while self._collides(item):
+                item = shift(item, 0.0, 1.0)
+            self.placed.append(item)
+
+    def _collides(self, item: Placed) -> bool:
+        mine = [item.keepout(), item.label_box()]
+        for other in self.placed:
+            for box in (other.keepout(), other.label_box()):
+                if any(_overlap(box, m, 0.6) for m in mine):
+                    return True
+        return False
+
+
+def _overlap(a: tuple[float, ...], b: tuple[float, ...], margin: float) -> bool:
+    return not (a[2] + margin <= b[0] or b[2] + margin <= a[0] or a[3] + margin <= b[1]
+                or b[3] + margin <= a[1])
+
+
+def amplifier_layout(design: Design, rails: dict[str, str], hints: Hints) -> Placement:
+    """Place the parts of ``design`` the way a discrete amplifier stage is drawn by hand."""
+    return _Builder(design, rails, hints).run()
+
+
+def net_flags(design: Design, hints: Hints) -> list[str]:
+    """Nets that carry a name flag: the input, the output and any the hints name."""
+    nets = [classify.input_net(design), design.bench.output, *hints.labels]
+    known = set(design.nets)
+    return [n for i, n in enumerate(nets) if n and n in known and n not in nets[:i]]
