@@ -275,8 +275,19 @@ def diode_model(values: Mapping[str, Array], temperature_k: Array) -> tuple[Eval
         i, g = physics.diode(u[:, 0], i_sat, n_vt, values["breakdown_voltage"])
         return np.stack([i, -i], -1), np.stack([g, -g], -1)[:, :, None]
 
+    breakdown = values["breakdown_voltage"][:, None]
+    finite = np.isfinite(breakdown)
+    knee_crit = physics.critical_voltage(physics.BREAKDOWN_KNEE_CURRENT, n_vt)[:, None]
+
     def limit(u_new: Array, u_old: Array) -> Array:
-        return physics.limit_junction(u_new, u_old, n_vt[:, None], v_crit[:, None])
+        forward = physics.limit_junction(u_new, u_old, n_vt[:, None], v_crit[:, None])
+        if not finite.any():
+            return forward
+        # the breakdown branch is the same exponential mirrored about −BV: limit it alike
+        offset = np.where(finite, breakdown, 0.0)
+        mirrored = -offset - physics.limit_junction(-(u_new + offset), -(u_old + offset),
+                                                    n_vt[:, None], knee_crit)
+        return np.where(finite & (u_new < -offset + knee_crit), mirrored, forward)
 
     return evaluate, limit
 
