@@ -20,7 +20,7 @@ from docgen.site.record_view import RecordView
 from docgen.site.render import render
 
 SITE_NAME = "Design notebook"
-ASSETS = ("docgen.css", "filter.js", "live-reload.js")
+ASSETS = ("docgen.css", "favicon.svg", "filter.js", "live-reload.js")
 STATUS_ORDER = ("draft", "review", "approved", "retired")
 
 
