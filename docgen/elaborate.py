@@ -192,7 +192,9 @@ def _find_model(part: Part, own: Mapping[str, ModelDef], library: Mapping[str, M
     name = part.model or ""
     model = own.get(name) or library.get(name)
     if model is None:
-        hint = did_you_mean(name, [*own, *library])
+        wanted = KINDS[part.kind].model_kind
+        same_kind = [m.name for m in [*own.values(), *library.values()] if m.kind == wanted]
+        hint = did_you_mean(name, same_kind)
         raise _ModelProblem(span, f"part {part.name}: no model named '{name}' in this design, "
                             "the library pages or the built-in models", hint)
     wanted = KINDS[part.kind].model_kind

@@ -125,34 +125,62 @@ def _parts_on(circuit: Circuit, net: str) -> list[Device]:
     return nonlinear + [d for d in on if d not in nonlinear]
 
 
-def require_converged(solution: OpSolution, sample: int = 0) -> None:
-    """Raise :class:`AnalysisError` if ``sample`` did not converge, naming what would not settle."""
-    if solution.converged[sample]:
-        return
-    circuit, dc = solution.circuit, solution.dc
-    index = int(dc.unsettled[sample])
-    layout = solution.problem.layout
+def _subject(solution: OpSolution, index: int) -> tuple[str, str, list[Device]]:
+    """(quantity, equation, parts) in user words for the unknown at ``index``."""
+    circuit, layout = solution.circuit, solution.problem.layout
     if 0 <= index < len(circuit.nets):
         net = circuit.nets[index]
         parts = _parts_on(circuit, net)
-        where = f"the currents at net '{net}' (parts {', '.join(d.name for d in parts)})"
-    else:
-        owner = next((name for name, i in {**layout.internal, **layout.branch}.items()
-                      if i == index), None)
-        parts = [circuit.device(owner)] if owner else list(circuit.devices[:1])
-        where = f"the equation of part {owner}" if owner else "the circuit's equations"
+        names = ", ".join(d.name for d in parts)
+        return (f"the voltage of net '{net}' (parts {names})",
+                f"the currents at net '{net}' (parts {names})", parts)
+    owner = next((name for name, i in {**layout.internal, **layout.branch}.items()
+                  if i == index), None)
+    if owner is None:
+        return "the circuit's unknowns", "the circuit's equations", list(circuit.devices[:1])
+    return (f"the current of part {owner}", f"the equation of part {owner}",
+            [circuit.device(owner)])
+
+
+def require_converged(solution: OpSolution, sample: int = 0) -> None:
+    """Raise :class:`AnalysisError` if ``sample`` did not converge, naming what would not settle.
+
+    A singular system (checked on the sample's last iterate) names the net or part whose value
+    nothing fixes; otherwise the unknown that still moved most in the last Newton step.
+    """
+    if solution.converged[sample]:
+        return
+    circuit, dc = solution.circuit, solution.dc
+    null_unknown = _singular_unknown(solution, sample)
+    index = null_unknown if null_unknown is not None else int(dc.unsettled[sample])
+    quantity, equation, parts = _subject(solution, index)
     tried = ", then ".join(dc.attempts)
-    if dc.singular[sample]:
-        message = (f"the operating point has no unique solution: {where} are singular "
-                   f"(tried {tried})")
-        hint = "look for parts that leave a voltage undefined (e.g. every device at that net off)"
+    if null_unknown is not None:
+        message = (f"the operating point has no unique solution: nothing fixes {quantity} "
+                   f"(the equations are singular; tried {tried})")
+        hint = "look for a net whose only connections carry no current (every device there off)"
     else:
-        message = (f"the operating point did not converge: {where} would not settle after "
+        message = (f"the operating point did not converge: {equation} would not settle after "
                    f"{int(dc.iterations[sample])} Newton iterations (tried {tried})")
         hint = ("check for positive feedback with no stable state, a part connected the wrong "
                 "way round, or values off by a prefix")
     span = parts[0].span if parts else circuit.devices[0].span
     raise AnalysisError(circuit.diagnostic(span, message, hint))
+
+
+def _singular_unknown(solution: OpSolution, sample: int) -> int | None:
+    """The unknown a singular system leaves undefined (largest entry of the null vector).
+
+    Only for the error message: the matrix of this one sample at its last iterate, by SVD.
+    """
+    index = np.array([sample])
+    problem = solution.problem.subset(index)
+    x = np.nan_to_num(solution.x[index])
+    matrix, _, _, _ = mna.assemble(problem, x, {}, limiting=False)
+    singular_values, vectors = np.linalg.svd(matrix[0])[1:]
+    if singular_values[-1] > 1e-13 * singular_values[0]:
+        return None
+    return int(np.argmax(np.abs(vectors[-1])))
 
 
 # ------------------------------------------------------------------- per-part figures
