@@ -39,12 +39,13 @@ def run(args: argparse.Namespace) -> int:
             repo = None  # the design is in another repository (or none)
     solver = solver_for(repo) if repo is not None else None
     if solver is None:
-        history = {"path": rel, "available": False, "rows": [], "diffs": [],
+        history = {"path": rel, "available": False, "rows": [],
                    "unavailable": "history is not available: the design is not in the same "
                                   "git repository as the designs folder"}
     else:
         history = design_history(repo, rel, designs_root, solver, with_diffs=False)
     history.pop("diffs", None)
+    history.pop("results", None)
     if args.json:
         print(json.dumps(history, indent=2, sort_keys=True, ensure_ascii=False))
         return 0

@@ -36,9 +36,15 @@ def changed_since_approval(repo: Repo | Path | str | None, path: str | Path,
         repo = Repo.find(Path(repo) if repo is not None else Path(path))
         if repo is None:
             return None
-    rel, root = _relative(repo, path), _relative(repo, designs_root)
+    return approval_check(repo, _relative(repo, path), _relative(repo, designs_root))
+
+
+def approval_check(repo: Repo, rel: str, root: str) -> dict[str, Any] | None:
+    """:func:`changed_since_approval` with paths already relative to the repository root."""
     current = snapshot(repo, None, rel, root)
     if current.design is None or current.design.header.status != "approved":
+        return None
+    if list_revisions(repo, rel).unavailable:
         return None
     approval = find_approval(repo, current, root)
     if approval is None:

@@ -6,8 +6,7 @@ docgen's version).  Because the key is a hash of content, a file is never stale:
 either right or never looked up again.  The folder survives builds, is ignored by git (it writes
 its own ``.gitignore``) and is safe to delete at any time; the next build just solves again.
 
-A second, smaller table maps git object ids (the design file's blob, the designs folder's tree)
-to the cache key, so a rebuild does not even need to read a revision it has seen before.
+A folder of ``None`` keeps results in memory only (the site build with caching turned off).
 """
 
 from __future__ import annotations
@@ -25,8 +24,9 @@ _IGNORE = "# written by docgen: everything here is a cache, safe to delete\n*\n"
 class ResultsCache:
     """Results dicts stored by cache key, with counts of hits and writes for this session."""
 
-    def __init__(self, folder: Path):
-        self.folder = Path(folder) / "history"
+    def __init__(self, folder: Path | None):
+        self.folder = Path(folder) / "history" if folder is not None else None
+        self.memory: dict[str, dict[str, Any]] = {}  # results seen in this process
         self.hits = 0
         self.stores = 0
 
@@ -36,28 +36,39 @@ class ResultsCache:
         return cls(Path(root) / CACHE_DIR)
 
     def _file(self, kind: str, key: str) -> Path:
+        assert self.folder is not None
         return self.folder / kind / key[:2] / f"{key}.json"
 
     def get(self, key: str) -> dict[str, Any] | None:
         """The results stored under ``key``, or ``None`` (an unreadable entry counts as none)."""
-        data = self._read(self._file("results", key))
+        data = self.memory.get(key)
+        if data is None and self.folder is not None:
+            data = self._read(self._file("results", key))
         if data is not None:
+            self.memory[key] = data
             self.hits += 1
         return data
 
-    def put(self, key: str, results: dict[str, Any]) -> None:
-        """Store ``results`` under ``key`` (atomically: a reader never sees half a file)."""
-        self._write(self._file("results", key), results)
-        self.stores += 1
+    def put(self, key: str, results: dict[str, Any], *, store: bool = True) -> None:
+        """Keep ``results`` under ``key``; with ``store``, also on disk (atomically: a reader
+        never sees half a file).  ``store=False`` seeds results computed elsewhere (the site
+        build's own cache already holds them)."""
+        self.memory[key] = results
+        if store and self.folder is not None:
+            self._write(self._file("results", key), results)
+            self.stores += 1
 
-    def key_for(self, ids: str) -> str | None:
-        """The cache key remembered for a combination of git object ids, if any."""
-        data = self._read(self._file("keys", ids))
-        return data.get("key") if isinstance(data, dict) else None
+    def figure(self, key: str) -> str | None:
+        """A figure (SVG text) stored under ``key``, or ``None``."""
+        if self.folder is None:
+            return None
+        data = self._read(self._file("figures", key))
+        return data.get("svg") if data is not None else None
 
-    def remember_key(self, ids: str, key: str) -> None:
-        """Remember that the git objects ``ids`` give the cache key ``key``."""
-        self._write(self._file("keys", ids), {"key": key})
+    def put_figure(self, key: str, svg: str) -> None:
+        """Store a figure drawn from content that ``key`` hashes."""
+        if self.folder is not None:
+            self._write(self._file("figures", key), {"svg": svg})
 
     @staticmethod
     def _read(path: Path) -> dict[str, Any] | None:
@@ -70,7 +81,7 @@ class ResultsCache:
 
     def _write(self, path: Path, data: dict[str, Any]) -> None:
         path.parent.mkdir(parents=True, exist_ok=True)
-        _ensure_ignored(self.folder.parent)
+        _ensure_ignored(self.folder.parent if self.folder else path.parent)
         text = json.dumps(data, sort_keys=True, ensure_ascii=False, allow_nan=True)
         fd, tmp = tempfile.mkstemp(dir=path.parent, prefix=".tmp-", suffix=".json")
         try:

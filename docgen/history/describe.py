@@ -6,7 +6,7 @@ from __future__ import annotations
 
 from typing import Any
 
-from docgen.units import format_eng
+from docgen.units import MINUS, format_eng
 
 Json = dict[str, Any]
 
@@ -28,7 +28,7 @@ def percent(fraction: float | None) -> str:
     """A relative change as a signed percentage (``+19.1 %``), or ``""``."""
     if fraction is None:
         return ""
-    return f"{fraction * 100:+.3g} %"
+    return f"{fraction * 100:+.3g} %".replace("-", MINUS)
 
 
 def circuit_lines(diff: Json) -> list[str]:

@@ -23,18 +23,18 @@ def design_history(repo: Repo | None, rel: str, designs_root: str, solver: Revis
                    *, with_diffs: bool = True) -> Json:
     """The history of the design at ``rel`` (relative to the repository root), newest first.
 
-    :returns: ``{"path", "available", "unavailable", "rows": [...], "diffs": [...]}``; each row
-        is a revision with ``status``, ``approved``, ``figures``, ``verdicts``, ``passed``,
-        ``total`` and ``errors``; ``diffs[i]`` compares row ``i + 1`` (older) with row ``i``.
+    :returns: ``{"path", "available", "unavailable", "rows": [...], "diffs": [...],
+        "results": [...]}``; each row is a revision with ``status``, ``approved``, ``figures``,
+        ``verdicts``, ``passed``, ``total`` and ``errors``; ``diffs[i]`` compares row ``i + 1``
+        (older) with row ``i``; ``results[i]`` is row ``i``'s results dict.
     """
     reason = unavailable_reason(repo)
     if reason is not None or repo is None:
-        return {"path": rel, "available": False, "unavailable": reason, "rows": [], "diffs": []}
+        return _unavailable(rel, reason)
     current = snapshot(repo, None, rel, designs_root)
     listing = list_revisions(repo, rel, current.uses)
     if not listing.available:
-        return {"path": rel, "available": False, "unavailable": listing.unavailable,
-                "rows": [], "diffs": []}
+        return _unavailable(rel, listing.unavailable)
     snaps = [snapshot(repo, r.commit.sha, r.path, designs_root) for r in listing.revisions]
     results = [solver.results(s) for s in snaps]
     rows = [revision_row(r, s, res) for r, s, res in zip(listing.revisions, snaps, results,
@@ -43,7 +43,13 @@ def design_history(repo: Repo | None, rel: str, designs_root: str, solver: Revis
     if with_diffs:
         for i in range(len(snaps) - 1):
             diffs.append(revision_diff(snaps[i + 1], snaps[i], results[i + 1], results[i]))
-    return {"path": rel, "available": True, "unavailable": None, "rows": rows, "diffs": diffs}
+    return {"path": rel, "available": True, "unavailable": None, "rows": rows, "diffs": diffs,
+            "results": results}
+
+
+def _unavailable(rel: str, reason: str | None) -> Json:
+    return {"path": rel, "available": False, "unavailable": reason, "rows": [], "diffs": [],
+            "results": []}
 
 
 def revision_row(revision: Revision, snap: Snapshot, results: Json) -> Json:

@@ -1,0 +1,105 @@
+"""The site build's page provider: a history page per design, a diff page per pair of
+consecutive revisions, and the changed-since-approval flag on design pages and the index.
+
+Registered in :data:`docgen.site.providers.PROVIDERS`.  Each revision's results come from the
+content cache (the build's cache folder), so after the first build only new revisions are
+solved; the current revision's results are taken from the build itself.
+"""
+
+from __future__ import annotations
+
+from typing import Any
+
+from docgen.cachekey import cache_key
+from docgen.history.approval import approval_check
+from docgen.history.cache import ResultsCache
+from docgen.history.figures import cached_figure, response_overlay, trend_plot, trend_series
+from docgen.history.pages import diff_context, diff_name, history_context
+from docgen.history.snapshot import RevisionSolver, open_repo
+from docgen.history.timeline import design_history
+from docgen.site.build import default_cache_dir
+from docgen.site.pages import Link
+from docgen.site.paths import files_dir, relative_url
+from docgen.site.providers import Contribution, ProviderInput
+
+Json = dict[str, Any]
+
+
+def provide(site: ProviderInput) -> Contribution:
+    """History and diff pages for every design in the site."""
+    repo, root = open_repo(site.record.root)
+    # The build hands over ``None`` both for its default folder and for --no-cache; history
+    # always keeps its cache (revisions never change), in the build's default place.
+    solver = RevisionSolver(ResultsCache(site.cache_dir or default_cache_dir(site.record.root)))
+    contribution = Contribution()
+    for rel in site.designs:
+        entry = site.record.entries[rel]
+        bundle = site.bundles.get(rel) or {}
+        if entry.design is not None and bundle.get("results"):
+            key = cache_key(entry.source, entry.library_bytes)
+            solver.cache.put(key, bundle["results"], store=False)
+        repo_rel = rel if root in ("", ".") else f"{root.rstrip('/')}/{rel}"
+        title = entry.design.header.title if entry.design is not None else rel
+        history = design_history(repo, repo_rel, root, solver)
+        approval = approval_check(repo, repo_rel, root) if repo is not None and \
+            history["available"] else None
+        _design_pages(site, contribution, rel, title or rel, history, approval, solver.cache)
+    return contribution
+
+
+def _design_pages(site: ProviderInput, out: Contribution, rel: str, title: str, history: Json,
+                  approval: Json | None, cache: ResultsCache) -> None:
+    page = site.pages[rel]
+    folder = files_dir(page)
+    history_path = f"{folder}/history.html"
+    rows = history["rows"]
+    diff_paths = [f"{folder}/{diff_name(rows[i + 1]['sha'], rows[i]['sha'])}"
+                  for i in range(len(history["diffs"]))]
+    trend = None
+    series = trend_series(rows)
+    if len(rows) > 1 and series:
+        labels = [r["short"][:7] for r in reversed(rows)]
+        out.files[f"{folder}/history-trends.svg"] = cached_figure(
+            cache, "trend", [labels, series], lambda: trend_plot(labels, series))
+        trend = "history-trends.svg"
+    context = history_context(
+        history, title=title, design_href=relative_url(history_path, page),
+        diff_hrefs=[relative_url(history_path, p) for p in diff_paths], trend=trend,
+        approval=approval)
+    out.files[history_path] = site.render("history.html", history_path, f"History of {title}",
+                                          page=context)
+    for i, diff in enumerate(history["diffs"]):
+        _diff_page(site, out, i, diff, history, diff_paths, title, page, history_path, cache)
+    count = len(rows)
+    text = f"{count} revision{'s' if count != 1 else ''}" if history["available"] \
+        else "not available"
+    links = [Link("History", text, history_path)]
+    if approval is not None:
+        links.append(Link("Review", f"changed since approval ({', '.join(approval['sections'])})",
+                          history_path + "#approval"))
+        out.index_flags.setdefault(rel, []).append("changed since approval")
+    out.design_links.setdefault(rel, []).extend(links)
+
+
+def _diff_page(site: ProviderInput, out: Contribution, i: int, diff: Json, history: Json,
+               diff_paths: list[str], title: str, page: str, history_path: str,
+               cache: ResultsCache) -> None:
+    rows, results = history["rows"], history["results"]
+    path = diff_paths[i]
+    overlay = None
+    old_ac, new_ac = results[i + 1].get("ac"), results[i].get("ac")
+    labels = (rows[i + 1]["short"][:7], rows[i]["short"][:7])
+    svg = cached_figure(cache, "response", [rows[i + 1]["key"], rows[i]["key"], labels],
+                        lambda: response_overlay(old_ac, new_ac, labels)) \
+        if old_ac and new_ac else None
+    if svg is not None:
+        figure = path[: -len(".html")] + "-response.svg"
+        out.files[figure] = svg
+        overlay = relative_url(path, figure)
+    context = diff_context(
+        diff, title=title, old_row=rows[i + 1], new_row=rows[i],
+        history_href=relative_url(path, history_path), design_href=relative_url(path, page),
+        overlay=overlay,
+        older_href=relative_url(path, diff_paths[i + 1]) if i + 1 < len(diff_paths) else None,
+        newer_href=relative_url(path, diff_paths[i - 1]) if i > 0 else None)
+    out.files[path] = site.render("diff.html", path, f"Changes to {title}", page=context)
