@@ -37,6 +37,9 @@ FLAT_WITHIN_DB = 1.0
 #: ... over at least this frequency ratio (one octave).
 FLAT_SPAN_RATIO = 2.0
 
+#: a gain peaking at 0 dB within this margin (a passive network) has no unity-gain frequency.
+UNITY_MARGIN_DB = 1e-6
+
 GainFunction = Callable[[np.ndarray], np.ndarray]
 
 
@@ -192,10 +195,22 @@ def find_corner(
         limit = freq[0] if side == "low" else freq[-1]
         where = "below the sweep start" if side == "low" else "above the sweep stop"
         return None, f"{where} ({limit:.4g} Hz): the gain stays within 3.01 dB of midband there"
-    inner = index - step  # the neighbour on the midband side, at or above the level
-    low_i, high_i = sorted((index, inner))
-    f = crossing(freq[low_i], freq[high_i], level, gain_db[low_i], gain_db[high_i], evaluate_db)
-    return f, None
+    return _bracketed(freq, gain_db, midband, index, index - step, level, evaluate_db), None
+
+
+def _bracketed(freq: np.ndarray, gain_db: np.ndarray, midband: Midband, outer: int, inner: int,
+               level: float, evaluate_db: GainFunction | None) -> float:
+    """The crossing of ``level`` between sweep points ``outer`` (below it) and ``inner``.
+
+    When ``inner`` is the midband point, its refined peak stands in for it: a sharp peak may lie
+    between sweep points, above a level its sweep neighbours never reach.
+    """
+    f_inner, g_inner = freq[inner], gain_db[inner]
+    if inner == midband.index:
+        f_inner, g_inner = midband.freq_hz, midband.gain_db
+    if f_inner < freq[outer]:
+        return crossing(f_inner, freq[outer], level, g_inner, gain_db[outer], evaluate_db)
+    return crossing(freq[outer], f_inner, level, gain_db[outer], g_inner, evaluate_db)
 
 
 def find_unity_gain(
@@ -205,14 +220,12 @@ def find_unity_gain(
     evaluate_db: GainFunction | None = None,
 ) -> tuple[float | None, str | None]:
     """The first frequency above midband where the gain falls through 0 dB, or ``None`` and why."""
-    if midband.gain_db < 0.0:
-        return None, f"the gain never reaches 0 dB (midband {midband.gain_db:.3g} dB)"
+    if midband.gain_db <= UNITY_MARGIN_DB:
+        return None, f"the gain never rises above 0 dB (midband {midband.gain_db:.3g} dB)"
     index = _walk(gain_db, midband.index, 1, 0.0)
     if index is None:
         return None, f"above the sweep stop ({freq[-1]:.4g} Hz): the gain is still above 0 dB"
-    f = crossing(freq[index - 1], freq[index], 0.0, gain_db[index - 1], gain_db[index],
-                 evaluate_db)
-    return f, None
+    return _bracketed(freq, gain_db, midband, index, index - 1, 0.0, evaluate_db), None
 
 
 def log_sweep(f_start: float, f_stop: float, points_per_decade: int) -> np.ndarray:

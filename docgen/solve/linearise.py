@@ -111,25 +111,29 @@ class SmallSignal:
 
 
 class _Stamper:
-    """Padded ``(S, K+1, K+1)`` matrices; local index M (the solver's ground slot) maps to K."""
+    """Padded ``(S, K+1, K+1)`` matrices with the ground slot last (index K).
+
+    Stamps take network indices; :meth:`local` maps a device's solver indices (whose ground
+    slot is M, the first pole row's number) onto them.
+    """
 
     def __init__(self, samples: int, solver_size: int, size: int):
         self.solver_size, self.size = solver_size, size
         self.G = np.zeros((samples, size + 1, size + 1))
         self.C = np.zeros((samples, size + 1, size + 1))
 
-    def slot(self, index: int) -> int:
-        return self.size if index == self.solver_size else index
+    def local(self, indices: tuple[int, ...]) -> tuple[int, ...]:
+        """A device's solver-local indices as network indices (ground → K)."""
+        return tuple(self.size if i == self.solver_size else i for i in indices)
 
     def between(self, matrix: Array, a: int, b: int, value: Array) -> None:
-        """Stamp an admittance-like ``value`` between local unknowns ``a`` and ``b``."""
-        a, b = self.slot(a), self.slot(b)
+        """Stamp an admittance-like ``value`` between network indices ``a`` and ``b``."""
         rows, cols = np.array([a, a, b, b]), np.array([a, b, a, b])
         np.add.at(matrix, (slice(None), rows, cols), np.stack([value, -value, -value, value], -1))
 
     def at(self, matrix: Array, row: int, column: int, value: Array) -> None:
         """Add ``value`` to one entry."""
-        np.add.at(matrix, (slice(None), self.slot(row), self.slot(column)), value)
+        np.add.at(matrix, (slice(None), row, column), value)
 
     def matrices(self) -> tuple[Array, Array]:
         return self.G[:, :-1, :-1], self.C[:, :-1, :-1]
@@ -161,18 +165,18 @@ def linearise(solution: OpSolution) -> SmallSignal:
 
 def _capacitor(stamper: _Stamper, solution: OpSolution, device: Any, poles: Any) -> None:
     values = solution.problem.values[device.name]
-    local = solution.problem.layout.local[device.name]
+    local = stamper.local(solution.problem.layout.local[device.name])
     capacitance = capacitance_at(values, solution.problem.temperature_c)
     stamper.between(stamper.C, local[0], local[1], capacitance)
 
 
 def _inductor(stamper: _Stamper, solution: OpSolution, device: Any, poles: Any) -> None:
-    branch = solution.problem.layout.local[device.name][2]
+    branch = stamper.local(solution.problem.layout.local[device.name])[2]
     stamper.at(stamper.C, branch, branch, -solution.problem.values[device.name]["value"])
 
 
 def _diode(stamper: _Stamper, solution: OpSolution, device: Any, poles: Any) -> None:
-    local = solution.problem.layout.local[device.name]
+    local = stamper.local(solution.problem.layout.local[device.name])
     junction = local[2] if len(local) == 3 else local[0]
     capacitance = solution.problem.values[device.name]["junction_capacitance"]
     stamper.between(stamper.C, junction, local[1], capacitance)
@@ -191,7 +195,7 @@ def bipolar_capacitances(solution: OpSolution, name: str) -> tuple[Array, Array]
 
 
 def _bipolar(stamper: _Stamper, solution: OpSolution, device: Any, poles: Any) -> None:
-    local = solution.problem.layout.local[device.name]
+    local = stamper.local(solution.problem.layout.local[device.name])
     collector, emitter = local[0], local[2]
     inner_base = local[3] if len(local) == 4 else local[1]
     c_pi, c_mu = bipolar_capacitances(solution, device.name)
@@ -200,7 +204,7 @@ def _bipolar(stamper: _Stamper, solution: OpSolution, device: Any, poles: Any) -
 
 
 def _fet(stamper: _Stamper, solution: OpSolution, device: Any, poles: Any) -> None:
-    drain, gate, source = solution.problem.layout.local[device.name][:3]
+    drain, gate, source = stamper.local(solution.problem.layout.local[device.name])[:3]
     values = solution.problem.values[device.name]
     stamper.between(stamper.C, gate, source, values["gate_source_capacitance"])
     stamper.between(stamper.C, gate, drain, values["gate_drain_capacitance"])
@@ -218,7 +222,7 @@ def opamp_gain_at(solution: OpSolution, name: str) -> Any:
 def _opamp(stamper: _Stamper, solution: OpSolution, device: Any, poles: Mapping[str, int]
            ) -> None:
     values = solution.problem.values[device.name]
-    in_p, in_n, _, v_pos, v_neg, branch = solution.problem.layout.local[device.name]
+    in_p, in_n, _, v_pos, v_neg, branch = stamper.local(solution.problem.layout.local[device.name])
     w = poles[device.name]
     e = opamp_gain_at(solution, device.name)
     # Move E's dependence from the output branch row to the pole row: in the DC Jacobian the

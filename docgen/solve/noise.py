@@ -39,7 +39,7 @@ from docgen.solve import mna, phasor, spectra
 from docgen.solve.curves import log_sweep
 from docgen.solve.linearise import SmallSignal, nominal_network, opamp_gain_at
 from docgen.solve.operating_point import part_quantities
-from docgen.solve.response import endpoints, transfer
+from docgen.solve.response import endpoints, singular, transfer
 
 Array = np.ndarray
 
@@ -248,7 +248,10 @@ def analyse(ctx: Any) -> dict[str, Any]:
     low, high = noise_band(bench)
     freq = log_sweep(low, high, bench.points_per_decade)  # the band's ends are grid points
     sources = noise_sources(network, freq)
-    per_source = output_noise(network, freq, output_net, sources)[:, 0]  # (P, F), sample 0
+    try:
+        per_source = output_noise(network, freq, output_net, sources)[:, 0]  # (P, F), sample 0
+    except np.linalg.LinAlgError as exc:
+        raise singular(ctx, input_part) from exc
     total = per_source.sum(axis=0)
     gain = np.abs(transfer(network, freq, input_part, output_net)[0])
     with np.errstate(divide="ignore", invalid="ignore"):

@@ -106,6 +106,14 @@ def endpoints(ctx: Any) -> tuple[str, str]:
     return input_part, bench.output
 
 
+def singular(ctx: Any, input_part: str) -> AnalysisError:
+    """The error for a small-signal network that cannot be solved at some frequency."""
+    return AnalysisError(ctx.circuit.diagnostic(
+        ctx.circuit.device(input_part).span,
+        "the small-signal network is singular at some frequency of the sweep",
+        "look for a net connected only through capacitors or current sources"))
+
+
 def _dc_gain_db(network: SmallSignal, input_part: str, output_net: str) -> float | None:
     try:
         h = transfer(network, np.array([0.0]), input_part, output_net)[0, 0]
@@ -131,10 +139,7 @@ def analyse(ctx: Any) -> dict[str, Any]:
     try:
         ports = {k: v[0] for k, v in port_curves(network, grid, input_part, output_net).items()}
     except np.linalg.LinAlgError as exc:
-        raise AnalysisError(ctx.circuit.diagnostic(
-            ctx.circuit.device(input_part).span,
-            "the small-signal network is singular at some frequency of the sweep",
-            "look for a net connected only through capacitors or current sources")) from exc
+        raise singular(ctx, input_part) from exc
     gain = ports["gain"]
     gain_db = curves.magnitude_db(gain[:-1])
 
