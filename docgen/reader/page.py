@@ -25,6 +25,9 @@ from docgen.reader.wiring import check_wiring, report_duplicates
 #: the block tags docgen reads; any other fenced block is prose.
 BLOCK_TAGS = ("circuit", "models", "bench", "require")
 
+# Only block structure matters here (where fences are), so inline parsing is switched off.
+_BLOCK_PARSER = MarkdownIt("commonmark").disable("inline")
+
 
 @dataclass(frozen=True, slots=True)
 class FoundBlock:
@@ -38,7 +41,7 @@ class FoundBlock:
 
 def find_blocks(file_lines: list[str], text: str) -> list[FoundBlock]:
     """Every fenced block of the page, in order (markdown-it-py token maps give the lines)."""
-    tokens = MarkdownIt("commonmark").parse(text)
+    tokens = _BLOCK_PARSER.parse(text)
     found = []
     for token in tokens:
         if token.type != "fence" or token.map is None:
