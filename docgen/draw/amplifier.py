@@ -27,7 +27,8 @@ LOWER_Y = -4.0
 TOP_LEVEL = 5.5
 BOTTOM_LEVEL = -5.5
 GAP = 1.0
-FEEDBACK_Y = 7.5
+CHAIN_STEP = 3.5  # between the centres of two parts in series in one column
+FEEDBACK_CLEARANCE = 2.5  # room for rail symbols between the stage and a feedback part
 OPAMP_FEEDBACK_Y = 3.0
 RAIL_ORDER = {"up": 2, "ground": 1, "down": 0}
 
@@ -91,6 +92,7 @@ class _Builder:
         self.middle: list[Part] = []
         self.feedback: list[Part] = []
         self.rail_parts: list[Part] = []
+        self.chain: dict[str, Part] = {}  # a chain head -> the rail part below/above it
         self.placed: list[Placed] = []
 
     # ---- roles ---------------------------------------------------------------------------
@@ -112,18 +114,35 @@ class _Builder:
                 self.feedback.append(part)
             else:
                 self.middle.append(part)
+        for part in list(self.middle):
+            self._make_chain(part)
         self.middle.sort(key=lambda p: (classify.input_rank(p, self.ranks),
                                         max(self.ranks.get(n, 0) for n in p.nets
                                             if n in self.ranks)))
         self.middle = self.hints.order(self.middle)
 
+    def _make_chain(self, part: Part) -> None:
+        """A part whose far net leads only to one rail part (RE1 then CE to ground) stands
+        in the rail part's column, the two in series."""
+        if part.kind in classify.ACTIVE:
+            return
+        for near, far in (part.nets, part.nets[::-1]):
+            users = [p for p in self.design.parts if far in p.nets]
+            if len(users) != 2:
+                continue
+            other = users[0] if users[1] is part else users[1]
+            if "signal" in (part.kind, other.kind):  # the source keeps its place at the input
+                continue
+            for side in (self.upper, self.lower):
+                if other in side.get(far, []) and near not in self.rails:
+                    side[far].remove(other)
+                    side.setdefault(near, []).append(part)
+                    self.middle.remove(part)
+                    self.chain[part.name] = other
+                    return
+
     def _is_feedback(self, part: Part) -> bool:
-        a, b = part.nets
-        for other in self.design.parts:
-            if other.kind in classify.ACTIVE and {a, b} <= set(other.nets):
-                return True
-        return abs(self.ranks[a] - self.ranks[b]) >= 2 and max(self.ranks[a], self.ranks[b]) < (
-            classify.UNREACHED)
+        return classify.feeds_back(self.design, self.rails, part)
 
     # ---- orientation ---------------------------------------------------------------------
 
@@ -131,7 +150,10 @@ class _Builder:
         if part.kind in classify.ACTIVE:
             return "mirrored" if self.hints.mirrored(part.name) else "normal"
         p, n = part.nets
-        if row == "upper":
+        if part.name in self.chain:  # its chained partner's net goes away from the middle
+            far = next(x for x in self.chain[part.name].nets if x in (p, n))
+            chosen = "down" if (far == n) == (row == "lower") else "up"
+        elif row == "upper":
             chosen = "down" if p in self.rails else "up"
         elif row == "lower":
             chosen = "down" if n in self.rails else "up"
@@ -163,8 +185,16 @@ class _Builder:
             if side is None or net in taken or not side.get(net) or part.kind == "opamp":
                 continue
             taken.add(net)
-            first = side[net].pop(0)
-            out.append(place(first, self.orient(first, row), (pin[0], y)))
+            out.extend(self.column(side[net].pop(0), row, pin[0], y))
+        return out
+
+    def column(self, part: Part, row: str, x: float, y: float) -> list[Placed]:
+        """A side part at (x, y) and, if it heads a chain, its partner beyond it."""
+        out = [place(part, self.orient(part, row), (x, y))]
+        partner = self.chain.get(part.name)
+        if partner is not None:
+            offset = CHAIN_STEP if row == "upper" else -CHAIN_STEP
+            out.append(place(partner, self.orient(partner, row), (x, y + offset)))
         return out
 
     def run(self) -> Placement:
@@ -215,9 +245,9 @@ class _Builder:
         done.add(net)
         ups, downs = self.upper.get(net, []), self.lower.get(net, [])
         for index in range(max(len(ups), len(downs))):
-            column = [place(p, self.orient(p, row), (0.0, y))
+            column = [item
                       for group, row, y in ((ups, "upper", UPPER_Y), (downs, "lower", LOWER_Y))
-                      if index < len(group) for p in [group[index]]]
+                      if index < len(group) for item in self.column(group[index], row, 0.0, y)]
             left = min(extent(p)[0] for p in column)
             right = max(extent(p)[1] for p in column)
             self.placed.extend(shift(p, cursor - left) for p in column)
@@ -233,11 +263,26 @@ class _Builder:
             a, b = part.nets
             centre = sum(sum(xs.get(n, [0.0])) / len(xs.get(n, [0.0])) for n in (a, b)) / 2
             on_opamp = any(o.kind == "opamp" and {a, b} <= set(o.nets) for o in self.design.parts)
-            y = OPAMP_FEEDBACK_Y if on_opamp else FEEDBACK_Y
+            y = OPAMP_FEEDBACK_Y if on_opamp else (
+                self._lowest() - FEEDBACK_CLEARANCE if self._on_lower_pin(a, b)
+                else self._highest() + FEEDBACK_CLEARANCE)
+            step = -1.0 if y < 0 else 1.0
             item = place(part, self.orient(part, "feedback"), (round(centre * 2) / 2, y))
             while self._collides(item):
-                item = shift(item, 0.0, 1.0)
+                item = shift(item, 0.0, step)
             self.placed.append(item)
+
+    def _lowest(self) -> float:
+        return min(min(p.keepout()[1], p.label_box()[1]) for p in self.placed)
+
+    def _highest(self) -> float:
+        return max(max(p.keepout()[3], p.label_box()[3]) for p in self.placed)
+
+    def _on_lower_pin(self, *nets: str) -> bool:
+        """True if a net leaves a middle-row part downwards (an emitter or source)."""
+        return any(placed.part.net(t) in nets and outward == (0, -1)
+                   for placed in self.placed if placed.part in self.middle
+                   for t, (_pin, outward) in placed.pins().items())
 
     def _collides(self, item: Placed) -> bool:
         mine = [item.keepout(), item.label_box()]

@@ -83,6 +83,48 @@ def signal_ranks(design: Design, rail_nets: Mapping[str, str]) -> dict[str, int]
     return ranks
 
 
+OUTPUT_TERMINALS = {"c", "e", "d", "s", "out"}
+
+
+def feeds_back(design: Design, rail_nets: Mapping[str, str], part: Part) -> bool:
+    """True if the two-terminal ``part`` joins two nets that the circuit already links through
+    an amplifying device (input to output), i.e. it closes a feedback loop."""
+    a, b = part.nets
+    return _amplified_path(design, rail_nets, part, a, b) or _amplified_path(
+        design, rail_nets, part, b, a)
+
+
+def _amplified_path(design: Design, rail_nets: Mapping[str, str], skip: Part, start: str,
+                    goal: str) -> bool:
+    steps: dict[str, list[tuple[str, bool]]] = {}
+    for other in design.parts:
+        if other is skip or other.kind == "supply":
+            continue
+        if other.kind in ACTIVE:
+            ins = [n for t, n in other.terminals if t in INPUT_TERMINALS]
+            outs = [n for t, n in other.terminals if t in OUTPUT_TERMINALS]
+            pairs = [(i, o, True) for i in ins for o in outs]
+            pairs += [(o, q, False) for o in outs for q in outs if o != q]
+        else:
+            x, y = other.nets
+            pairs = [(x, y, False), (y, x, False)]
+        for x, y, amplified in pairs:
+            if x not in rail_nets and y not in rail_nets:
+                steps.setdefault(x, []).append((y, amplified))
+    seen = {(start, False)}
+    queue = deque(seen)
+    while queue:
+        net, amplified = queue.popleft()
+        if net == goal and amplified:
+            return True
+        for nxt, through in steps.get(net, ()):
+            state = (nxt, amplified or through)
+            if state not in seen:
+                seen.add(state)
+                queue.append(state)
+    return False
+
+
 def input_rank(part: Part, ranks: Mapping[str, int]) -> int:
     """The rank of the net a part takes its signal from."""
     if part.kind in ACTIVE:

@@ -93,7 +93,8 @@ def geometry(drawing: Any) -> Geometry:
         anchors = element.absanchors
         boxes.append(element.get_bbox(transform=True, includetext=True))
         for segment in element.segments:
-            if isinstance(segment, SegmentText):
+            # marks inside a part's symbol ('+' of an electrolytic) belong to its body
+            if isinstance(segment, SegmentText) and not hasattr(element, "docgen_part"):
                 box = segment.xform(element.transform).get_bbox()
                 geo.texts.append((segment.text, tuple(box)))
         if isinstance(element, Line):
