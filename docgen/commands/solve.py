@@ -51,9 +51,24 @@ def run(args: argparse.Namespace) -> int:
         print(json.dumps(round_results(results), indent=2, ensure_ascii=False))
     else:
         print(render(results), end="")
+    _print_analysis_errors(results.get("errors", []))
     return 2 if results.get("errors") else 0
 
 
 def _print_diagnostics(diagnostics: list[Diagnostic]) -> None:
     for d in diagnostics:
         print(d.render(), file=sys.stderr)
+
+
+def _print_analysis_errors(errors: list[dict]) -> None:
+    """Each distinct analysis failure once on stderr, as ``path:line:col: error: ...``."""
+    seen: set[tuple] = set()
+    for e in errors:
+        key = (e["path"], e["line"], e["col"], e["message"])
+        if key in seen:
+            continue
+        seen.add(key)
+        print(f"{e['path']}:{e['line']}:{e['col']}: {e['severity']}: {e['message']}",
+              file=sys.stderr)
+        if e.get("hint"):
+            print(f"    hint: {e['hint']}", file=sys.stderr)

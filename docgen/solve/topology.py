@@ -167,6 +167,13 @@ def _floating(circuit: Circuit) -> list[Diagnostic]:
     return [_floating_message(circuit, nets) for nets in groups.values()]
 
 
+def _words(items: list[str]) -> str:
+    """``a``, ``a and b``, ``a, b and c``."""
+    if len(items) < 2:
+        return "".join(items)
+    return ", ".join(items[:-1]) + " and " + items[-1]
+
+
 def _floating_message(circuit: Circuit, nets: list[str]) -> Diagnostic:
     members = set(nets)
     touching = [(d, t) for d in circuit.devices for t, n in zip(d.terminals, d.nets, strict=True)
@@ -176,8 +183,8 @@ def _floating_message(circuit: Circuit, nets: list[str]) -> Diagnostic:
         "nets " + ", ".join(f"'{n}'" for n in nets)
     blocked = [(d, t) for d, t in touching if d.kind in _ROLE
                and not any(t in pair for pair in CONDUCTING.get(d.kind, []))]
-    through = ", ".join(dict.fromkeys(_ROLE[d.kind].format(name=d.name, terminal=t)
-                                      for d, t in blocked)) or "nothing else"
+    through = _words(list(dict.fromkeys(_ROLE[d.kind].format(name=d.name, terminal=t)
+                                        for d, t in blocked))) or "nothing else"
     sources = [d for d, _ in feeders if d.kind == "current"]
     if sources:
         first = sources[0]

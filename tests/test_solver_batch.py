@@ -1,0 +1,75 @@
+"""A batch of S samples solves exactly like S single solves (one implementation for both).
+
+Reference: the solver itself run one sample at a time — the property under test is that
+batching changes nothing (to 1e-9), including samples that need stepping next to samples that
+do not, and per-sample temperatures.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+import pytest
+from solver_helpers import make_circuit
+
+from docgen.solve.operating_point import part_quantities, solve_op
+
+CE = """
+VC  supply   15 V        : vcc gnd
+R1  resistor 47k         : vcc b
+R2  resistor 10k         : b gnd
+RC  resistor 4k7         : vcc c
+RE  resistor 1k          : e gnd
+Q1  npn      generic-npn : c=c b=b e=e
+"""
+
+
+def test_batch_equals_single_solves():
+    circuit = make_circuit(CE)
+    rng = np.random.default_rng(7)
+    samples = 16
+    overrides = {
+        ("R1", "value"): 47e3 * rng.uniform(0.95, 1.05, samples),
+        ("RC", "value"): 4.7e3 * rng.uniform(0.95, 1.05, samples),
+        ("Q1", "beta"): rng.uniform(100, 300, samples),
+        ("Q1", "saturation_current"): 1e-14 * rng.uniform(0.5, 2, samples),
+    }
+    temperature = rng.uniform(-20, 60, samples)
+    batch = solve_op(circuit, overrides, temperature)
+    assert batch.converged.all()
+    for k in range(samples):
+        single = solve_op(circuit, {key: val[k] for key, val in overrides.items()},
+                          temperature[k])
+        np.testing.assert_allclose(batch.voltages[k], single.voltages[0], rtol=1e-9, atol=1e-12)
+        assert part_quantities(batch, "Q1")["ic_a"][k] == pytest.approx(
+            part_quantities(single, "Q1")["ic_a"][0], rel=1e-9)
+
+
+def test_batch_mixing_easy_and_hard_samples_matches_single_solves():
+    # The current sink needs stepping at 470 Ω but not at 100 Ω: converged samples are frozen
+    # while the others go on, so every sample ends where it would alone.
+    circuit = make_circuit("""
+VH  supply   100 V         : vh gnd
+VP  supply   15 V          : vp gnd
+VR  supply   1 V           : ref gnd
+U1  opamp    generic-opamp : in+=ref in-=s out=g v+=vp v-=gnd
+M1  nmos     generic-nmos  : d=d g=g s=s
+RS  resistor 10            : s gnd
+RL  resistor 470           : vh d
+""")
+    loads = np.array([100.0, 470.0, 220.0, 470.0])
+    batch = solve_op(circuit, {("RL", "value"): loads})
+    assert batch.converged.all()
+    assert len(set(batch.method.tolist())) > 1
+    for k, load in enumerate(loads):
+        single = solve_op(circuit, {("RL", "value"): load})
+        np.testing.assert_allclose(batch.voltages[k], single.voltages[0], rtol=1e-9, atol=1e-9)
+
+
+def test_override_lengths_must_agree():
+    with pytest.raises(ValueError):
+        solve_op(make_circuit(CE), {("R1", "value"): np.ones(3), ("R2", "value"): np.ones(4)})
+
+
+def test_unknown_override_is_refused():
+    with pytest.raises(KeyError):
+        solve_op(make_circuit(CE), {("R9", "value"): 1.0})
