@@ -63,9 +63,15 @@ def _pyplot() -> Any:
 
 
 def _eng(unit: str) -> Any:
-    from matplotlib.ticker import EngFormatter
+    """Tick labels in engineering notation (``10 kHz``); units that take no SI prefix (dB,
+    °, %) are printed plainly (``−20 dB``)."""
+    from matplotlib.ticker import EngFormatter, FuncFormatter
 
-    return EngFormatter(unit=unit, sep=" ")
+    from docgen.units import PREFIXABLE, format_eng
+
+    if unit in PREFIXABLE:
+        return EngFormatter(unit=unit, sep=" ")
+    return FuncFormatter(lambda value, _position: format_eng(value, unit, digits=4))
 
 
 def _to_svg(fig: Any) -> str:
@@ -193,10 +199,9 @@ def histogram(samples: Sequence[float], *, unit: str, label: str, bins: int = 30
     if counts is not None and edges is not None:
         widths = [b - a for a, b in zip(edges[:-1], edges[1:], strict=True)]
         ax.bar(list(edges[:-1]), list(counts), width=widths, align="edge",
-               color=CURVE_COLOURS[0], edgecolor="white", linewidth=0.4)
+               color=CURVE_COLOURS[0])
     else:
-        ax.hist(list(samples), bins=bins, color=CURVE_COLOURS[0], edgecolor="white",
-                linewidth=0.4)
+        ax.hist(list(samples), bins=bins, color=CURVE_COLOURS[0], histtype="stepfilled")
     ax.xaxis.set_major_formatter(_eng(unit))
     ax.set_xlabel(label)
     ax.set_ylabel("boards")

@@ -79,12 +79,16 @@ def feedback(design: Design, results: Results) -> Section | None:
     add_facts(out, section, (("crossover frequency", "crossover_hz", "Hz"),
                              ("phase margin", "phase_margin_deg", "°"),
                              ("gain margin", "gain_margin_db", "dB"),
-                             ("PSRR at the signal frequency", "psrr_at_signal_db", "dB")))
+                             ("PSRR at the signal frequency", "psrr_at_signal_db", "dB"),
+                             ("step overshoot", "overshoot_percent", "%"),
+                             ("step settling time", "settling_time_s", "s"),
+                             ("output offset", "output_offset_v", "V")))
     step = section.get("step")
     if isinstance(step, dict):
         add_facts(out, step, (("step overshoot", "overshoot_percent", "%"),
                               ("step rise time", "rise_time_s", "s"),
                               ("step settling time", "settling_time_s", "s")))
+    out["facts"] = list({fact[0]: fact for fact in out["facts"]}.values())
     _offset(out, section.get("offset"))
     freq = section.get("loop_freq_hz")
     if isinstance(freq, list) and freq:
@@ -108,23 +112,17 @@ def _offset(out: Section, offset: Any) -> None:
 
 
 def _rejection(design: Design, out: Section, section: dict[str, Any]) -> None:
-    series = []
-    freq: list[float] | None = None
-    psrr = section.get("psrr")
-    if isinstance(psrr, dict):
-        for supply, curve in sorted(psrr.items()):
-            if isinstance(curve, dict) and isinstance(curve.get("freq_hz"), list):
-                freq = freq or curve["freq_hz"]
-                values = curve_of(curve, "psrr_db", len(freq))
-                if values is not None and len(curve["freq_hz"]) == len(freq):
-                    series.append((f"PSRR {supply}", values))
-    cmrr = section.get("cmrr")
-    if isinstance(cmrr, dict) and isinstance(cmrr.get("freq_hz"), list):
-        freq = freq or cmrr["freq_hz"]
-        values = curve_of(cmrr, "cmrr_db", len(freq))
-        if values is not None and len(cmrr["freq_hz"]) == len(freq):
-            series.append(("CMRR", values))
-    if freq and series:
+    """PSRR per supply and CMRR against frequency: ``psrr_db`` {supply: [dB]} and ``cmrr_db``
+    over ``freq_hz`` (docs/results.md)."""
+    freq = section.get("freq_hz")
+    if not isinstance(freq, list) or not freq:
+        return
+    psrr = section.get("psrr_db")
+    series = named_curves(psrr if isinstance(psrr, dict) else {},
+                          [(f"PSRR {supply}", supply) for supply in sorted(psrr or {})],
+                          len(freq))
+    series += named_curves(section, (("CMRR", "cmrr_db"),), len(freq))
+    if series:
         marks = marks_for(design, {"psrr_at": ("point", 0), "cmrr_at": ("point", 0)})
         out["figures"].append(figure("rejection.svg", "Supply and common-mode rejection",
                                      plots.curves(freq, series, unit="dB", ylabel="rejection",

@@ -220,6 +220,6 @@ BUILDERS: list[Callable[[Design, Results], Section | None]] = [
 
 def build_sections(design: Design, results: Results) -> list[Section]:
     """Every section the results allow, in page order."""
-    from docgen.site import more_sections  # noqa: F401 - registers the remaining builders
+    from docgen.site import more_sections, spread_sections  # noqa: F401 - register builders
 
     return [s for builder in BUILDERS if (s := builder(design, results)) is not None]

@@ -127,12 +127,12 @@ def estimate_table(results: Results | None) -> dict[str, Any] | None:
             continue
         unit = str(item.get("unit") or "")
         estimate, solved = item.get("estimate"), item.get("solved")
-        error = item.get("error_fraction")
+        error = item.get("error_percent")
         rows.append([str(item.get("metric", "")), str(item.get("expression", "")),
                      format_value(estimate, unit) if isinstance(estimate, (int, float)) else "",
                      format_value(solved, unit) if isinstance(solved, (int, float)) else
                      str(item.get("reason") or "not computed"),
-                     format_eng(error * 100, "%") if isinstance(error, (int, float)) else ""])
+                     format_eng(error, "%") if isinstance(error, (int, float)) else ""])
     if not rows:
         return None
     return {"caption": "Estimates written in the design file, evaluated on its parts",

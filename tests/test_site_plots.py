@@ -1,0 +1,75 @@
+"""Plots: deterministic SVG, engineering-notation axes with units, log frequency, limit marks.
+
+References: the SVG produced must be well-formed XML (W3C XML 1.0, checked with the standard
+library's parser); tick labels use SI prefixes per the SI Brochure (BIPM).
+"""
+
+from __future__ import annotations
+
+import math
+import xml.etree.ElementTree as ElementTree
+
+import pytest
+
+from docgen import plots
+
+FREQ = [10 ** (1 + k / 10) for k in range(51)]  # 10 Hz .. 1 MHz
+GAIN = [20 - 10 * math.log10(1 + (f / 20e3) ** 2) for f in FREQ]
+PHASE = [-math.degrees(math.atan(f / 20e3)) for f in FREQ]
+
+
+def _texts(svg: str) -> list[str]:
+    root = ElementTree.fromstring(svg)
+    return ["".join(e.itertext()) for e in root.iter() if e.tag.endswith("text")]
+
+
+def test_same_input_gives_identical_bytes() -> None:
+    first = plots.frequency_response(FREQ, GAIN, PHASE)
+    second = plots.frequency_response(FREQ, GAIN, PHASE)
+    assert first == second
+    assert "<dc:date>" not in first and "Date" not in first
+
+
+def test_frequency_axis_is_logarithmic_with_si_prefixes() -> None:
+    texts = _texts(plots.frequency_response(FREQ, GAIN, PHASE))
+    for label in ("10 Hz", "100 Hz", "1 kHz", "10 kHz", "100 kHz", "1 MHz"):
+        assert label in texts, label
+    assert "gain (dB)" in texts and "phase (°)" in texts
+
+
+def test_decibel_ticks_take_no_prefix() -> None:
+    texts = _texts(plots.histogram([-0.9, -0.5, -0.1, -0.2], unit="dB", label="gain"))
+    assert not any("mdB" in t for t in texts)
+    assert any(t.endswith(" dB") for t in texts)
+
+
+def test_impedance_axis_in_ohms_with_prefix() -> None:
+    texts = _texts(plots.curves(FREQ, [("input", [47e3] * len(FREQ))], unit="Ω",
+                                ylabel="|Z|", log_y=False))
+    assert any(t.endswith("kΩ") for t in texts)
+
+
+@pytest.mark.parametrize("mark", [
+    plots.Mark("point", 18.0, 22.0, "gain at 1 kHz : 18 dB .. 22 dB", at=1e3),
+    plots.Mark("x", None, 20.0, "low corner : < 20 Hz"),
+    plots.Mark("y", 19.0, None, "midband gain : > 19 dB"),
+])
+def test_requirement_limits_are_drawn(mark: plots.Mark) -> None:
+    plain = plots.frequency_response(FREQ, GAIN, PHASE)
+    marked = plots.frequency_response(FREQ, GAIN, PHASE, marks=[mark])
+    assert plots.LIMIT_COLOUR not in plain
+    assert plots.LIMIT_COLOUR in marked
+    assert "requirement limit" in _texts(marked)
+
+
+def test_every_plot_kind_is_well_formed_svg() -> None:
+    svgs = [
+        plots.waveform([k * 1e-5 for k in range(100)],
+                       [("output", [math.sin(k / 10) for k in range(100)])]),
+        plots.spectrum([2, 3, 4], [-40.0, -55.0, -70.0]),
+        plots.histogram([1.0, 2.0, 2.5], unit="V", label="voltage at out", counts=[1, 2],
+                        edges=[0.5, 1.5, 2.5]),
+        plots.drift([-20, 25, 60], [1e-3, 1.1e-3, 1.2e-3], unit="A", label="Q1 collector current"),
+    ]
+    for svg in svgs:
+        ElementTree.fromstring(svg)
