@@ -13,7 +13,7 @@ import io
 import pytest
 
 from docgen.reader import read_text
-from docgen.site.parts import parts_csv, part_rows, preferred_flag, series_for
+from docgen.site.parts import part_rows, parts_csv, preferred_flag, series_for
 
 DESIGN = """---
 title: Parts fixture
