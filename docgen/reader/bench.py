@@ -141,19 +141,27 @@ def _distortion(text: str) -> dict[str, Any]:
 
 #: bench key -> (reader of its value, meaning) — the docs list this table.
 KEYS: dict[str, tuple[Reader, str]] = {
-    "input": (lambda t: {"input": _name(t)["value"]}, "the signal part driving the stage"),
-    "output": (lambda t: {"output": _name(t)["value"]}, "the net observed, against gnd"),
-    "load": (_load, "a resistor, or R || C, from the output to gnd in every analysis"),
-    "frequencies": (_frequencies, "the response sweep, 'low .. high'"),
+    "input": (lambda t: {"input": _name(t)["value"]},
+              "the `signal` part driving the stage; default none"),
+    "output": (lambda t: {"output": _name(t)["value"]},
+               "the net observed, against gnd; default none"),
+    "load": (_load, "`47k` or `47k || 100p` (also `‖`): R, or R parallel C, from the output to "
+             "gnd in every analysis; default no load"),
+    "frequencies": (_frequencies, "the response sweep `low .. high`; default `10 Hz .. 1 MHz`"),
     "points per decade": (lambda t: {"points_per_decade": _integer(t, 2, "points per decade")},
-                          "resolution of the sweep"),
+                          "resolution of the sweep, a whole number ≥ 2; default 50"),
     "noise band": (lambda t: {"noise_band": _span_of(t, "Hz", "the noise band")},
-                   "the band noise is integrated over"),
-    "ambient": (_ambient, "the nominal ambient temperature, optionally with a range"),
-    "boards": (lambda t: {"boards": _integer(t, 1, "boards")}, "tolerance-analysis samples"),
-    "seed": (lambda t: {"seed": _integer(t, 0, "the seed")}, "the tolerance-analysis seed"),
-    "distribution": (_distribution, "how tolerances are drawn: uniform or normal"),
-    "distortion limit": (_distortion, "the THD that bounds the output swing"),
+                   "the band noise is integrated over, `low .. high`; default the sweep"),
+    "ambient": (_ambient, "`25 °C`, `-20 °C .. 60 °C` or `40 °C (0 °C .. 85 °C)`: nominal "
+                "ambient and optional range; default 25 °C, no range"),
+    "boards": (lambda t: {"boards": _integer(t, 1, "boards")},
+               "tolerance-analysis samples, a whole number ≥ 1; default 500"),
+    "seed": (lambda t: {"seed": _integer(t, 0, "the seed")},
+             "the tolerance-analysis seed, a whole number ≥ 0; default 1"),
+    "distribution": (_distribution, "`uniform`, or `normal` with the tolerance at 3σ; "
+                     "default uniform"),
+    "distortion limit": (_distortion, "the THD that bounds the output-swing search, a "
+                         "percentage; default 1 %"),
 }
 
 
