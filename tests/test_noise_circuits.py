@@ -57,7 +57,7 @@ def test_diode_shot_noise():
     # (Sedra & Smith), and the source resistance (1 MΩ behind a coupling capacitor) adds its
     # thermal noise through the divider rd/(Rs + rd).
     i, n, rs = 1e-3, 1.8, 1e6
-    out = results(f"""
+    out = results("""
 VS  signal    1 mV 1 kHz source=1M : s gnd
 CS  capacitor 1m                     : s a
 I1  current   1m                     : gnd a
