@@ -101,3 +101,29 @@ def test_installed_hook_runs_after_a_commit(repo):
     subprocess.run(["git", "commit", "-q", "-m", "add y"], cwd=repo.root / "designs", env=env,
                    check=True)
     assert log.read_text().splitlines()[1] == str(repo.root)
+
+
+@pytest.mark.slow
+def test_hook_rebuilds_the_site_with_history_after_each_commit(tmp_path):
+    """The real hook and the real ``docgen build``: each commit republishes the site, and the
+    history page grows by one revision per commit."""
+    from test_history_scripted import DESIGN
+
+    script = ScriptedRepo(tmp_path / "repo")
+    script.write(".gitignore", "/site/\n")
+    script.write("designs/ce.md", DESIGN)
+    script.commit("Add the CE stage")
+    assert main(["hook", "install", "--repo", str(script.root)]) == 0
+    script.edit("designs/ce.md", "4k7 1% 0.25 W           : vcc c1",
+                "3k9 1% 0.25 W           : vcc c1")
+    second = script.commit("RC 4k7 to 3k9")
+    history = script.root / "site" / "ce.files" / "history.html"
+    text = history.read_text(encoding="utf-8")
+    assert second[:10] in text and text.count("<code>") >= 2
+    assert (script.root / "site" / "index.html").exists()
+    script.edit("designs/ce.md", "3k9 1% 0.25 W           : vcc c1",
+                "4k3 1% 0.25 W           : vcc c1")
+    third = script.commit("RC 3k9 to 4k3")
+    text = history.read_text(encoding="utf-8")
+    assert third[:10] in text and second[:10] in text
+    assert len(list(history.parent.glob("diff-*.html"))) == 2
