@@ -15,10 +15,11 @@ all samples and all frequencies in one batched ``numpy.linalg.solve`` (the sprea
 Conventions (DEVELOPERS.md): the gain is from the signal's open-circuit voltage (before its
 ``source=`` resistance) to the output net with the bench load in place, in dB; an inverting
 stage shows as a phase near ±180° (the phase is unwrapped and anchored to (−180°, 180°] at
-midband, so a plain inverting stage reads +180°).  The input impedance is seen by the source
-into the input net (the signal's first net, after its source resistance), with the load in
-place; the output impedance looks into the output net with the load removed and the source
-zeroed (its resistance kept).  Midband, corners and unity gain: :mod:`docgen.solve.curves`.
+midband, so an inverting stage reads +180°, or −179.9…° when a slight lead tips it over).
+The input impedance is seen by the source into the input net (the signal's first net, after
+its source resistance), with the load in place; the output impedance looks into the output
+net with the load removed and the source zeroed (its resistance kept).  Midband, corners and
+unity gain: :mod:`docgen.solve.curves`.
 """
 
 from __future__ import annotations
@@ -176,8 +177,12 @@ def analyse(ctx: Any) -> dict[str, Any]:
         "phase_at_signal_deg": _number(_phase_at_signal(phase, freq, signal_hz)),
         "zin_ohm": zin,
         "zin_phase_deg": zin_phase,
+        "zin_reason": None if zin is not None else (
+            "unbounded: no small-signal current flows from the source into the input net"),
         "zout_ohm": zout,
         "zout_phase_deg": zout_phase,
+        "zout_reason": None if zout is not None else (
+            "unbounded: with the load removed the output net has no small-signal path"),
         "zin_curve_ohm": _impedance_curve(ports["zin"][:-1]),
         "zout_curve_ohm": _impedance_curve(ports["zout"][:-1]),
     }

@@ -119,7 +119,7 @@ def rank_contributors(powers: Mapping[tuple[str, str], float]) -> list[dict[str,
             "part": part,
             "mechanism": mechanism,
             "output_rms_v": math.sqrt(power),
-            "share": power / total if total > 0 else 0.0,
+            "share": min(power / total, 1.0) if total > 0 else 0.0,
         }
         for (part, mechanism), power in ordered
     ]
