@@ -174,7 +174,8 @@ def _f(section: str, key: str, scale: float = 1.0) -> Callable[[Results, Metric]
 
 READERS: dict[str, Callable[[Results, Metric], float]] = {
     "gain_at": lambda r, m: _signal_or_curve(r, "gain_at_signal_db", "gain_db", m.args["freq"]),
-    "phase_at": lambda r, m: _curve_at(r, "ac", "phase_deg", m.args["freq"]),
+    "phase_at": lambda r, m: _signal_or_curve(r, "phase_at_signal_deg", "phase_deg",
+                                              m.args["freq"]),
     "midband_gain": _a("midband_gain_db"),
     "low_corner": _a("f_low_hz"),
     "high_corner": _a("f_high_hz"),
