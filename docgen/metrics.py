@@ -357,11 +357,24 @@ def unknown_names(metric: Metric, parts: dict[str, str], nets: Iterable[str]) ->
     return problems
 
 
-def sections_needed(metrics: Iterable[Metric]) -> set[str]:
-    """The results sections the metrics read, with the sections those analyses build on."""
+def sections_needed(metrics: Iterable[Metric | str | Any]) -> set[str]:
+    """The results sections the metrics read, with the sections those analyses build on.
+
+    Items may be :class:`Metric`, metric text, or requirements (anything with a ``metric``
+    text and an ``across`` tuple); text that does not parse is skipped (the checker reports
+    it).  A requirement held ``across`` boards or temperature needs the spread analysis.
+    """
     needed = {"op"}
-    for metric in metrics:
-        needed |= metric.sections
+    for item in metrics:
+        if getattr(item, "across", None):
+            needed.add("spread")
+        text = item if isinstance(item, str) else getattr(item, "metric", None)
+        if isinstance(text, str):
+            try:
+                item = parse(text)
+            except MetricError:
+                continue
+        needed |= item.sections
     if needed & {"noise", "feedback", "spread"}:
         needed.add("ac")
     return needed

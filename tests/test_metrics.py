@@ -99,6 +99,20 @@ def test_sections_needed() -> None:
     metrics = [parse("Q1 collector current"), parse("input noise")]
     assert sections_needed(metrics) == {"op", "ac", "noise"}
     assert sections_needed([parse("drift of voltage at c1")]) == {"op", "spread", "ac"}
+    assert sections_needed(["THD", "gian"]) == {"op", "transient"}  # bad text is skipped
+
+
+def test_sections_needed_for_requirements() -> None:
+    from docgen.design import Limit, Requirement
+    from docgen.diagnostics import Span
+
+    def requirement(text: str, across: tuple[str, ...] = ()) -> Requirement:
+        return Requirement(text, Limit("below", None, 1.0), across, Span(1, 1), Span(1, 1),
+                           Span(1, 1))
+
+    assert sections_needed([requirement("voltage at c1")]) == {"op"}
+    assert sections_needed([requirement("voltage at c1", ("boards",))]) == {"op", "spread",
+                                                                            "ac"}
 
 
 def _single_pole_results(fc: float) -> dict:
