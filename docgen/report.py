@@ -21,6 +21,8 @@ Printer = Callable[[dict[str, Any], dict[str, Any]], list[str]]
 #: (section name, "module:function") in print order.
 SECTION_PRINTERS: list[tuple[str, str]] = [
     ("op", "docgen.report:print_op"),
+    ("ac", "docgen.report_small_signal:print_ac"),
+    ("noise", "docgen.report_small_signal:print_noise"),
 ]
 
 #: Sections that are not results of an analysis (never printed as a section).

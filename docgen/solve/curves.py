@@ -30,6 +30,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from docgen.units import format_eng
+
 #: 20·log10(√2): the "−3 dB" drop in exact form.
 CORNER_DROP_DB = 20.0 * math.log10(math.sqrt(2.0))
 #: a midband is flat when the gain stays within this many dB of its maximum ...
@@ -107,7 +109,8 @@ def find_midband(
         note = (f"no flat midband in the sweep: the gain is still {trend} at the sweep {at_edge}; "
                 "the midband figure is the gain there (widen the sweep)")
     elif not flat:
-        note = (f"no flat midband: the gain peaks at {peak_freq:.4g} Hz and stays within "
+        peak_text = format_eng(peak_freq, "Hz", 4)
+        note = (f"no flat midband: the gain peaks at {peak_text} and stays within "
                 f"{FLAT_WITHIN_DB:g} dB of the peak for less than an octave; corners are measured "
                 "3.01 dB below the peak")
     return Midband(index, peak, peak_freq, bool(flat), at_edge, note)
@@ -191,10 +194,11 @@ def find_corner(
     if index is None:
         if side == "low" and dc_gain_db is not None and dc_gain_db >= level:
             return None, (f"no low corner: the stage is direct-coupled (gain at DC "
-                          f"{dc_gain_db:.3g} dB, within 3.01 dB of midband)")
+                          f"{format_eng(dc_gain_db, 'dB')}, within 3.01 dB of midband)")
         limit = freq[0] if side == "low" else freq[-1]
         where = "below the sweep start" if side == "low" else "above the sweep stop"
-        return None, f"{where} ({limit:.4g} Hz): the gain stays within 3.01 dB of midband there"
+        limit_text = format_eng(limit, "Hz", 4)
+        return None, f"{where} ({limit_text}): the gain stays within 3.01 dB of midband there"
     return _bracketed(freq, gain_db, midband, index, index - step, level, evaluate_db), None
 
 
@@ -221,10 +225,12 @@ def find_unity_gain(
 ) -> tuple[float | None, str | None]:
     """The first frequency above midband where the gain falls through 0 dB, or ``None`` and why."""
     if midband.gain_db <= UNITY_MARGIN_DB:
-        return None, f"the gain never rises above 0 dB (midband {midband.gain_db:.3g} dB)"
+        midband_text = format_eng(midband.gain_db, "dB")
+        return None, f"the gain never rises above 0 dB (midband {midband_text})"
     index = _walk(gain_db, midband.index, 1, 0.0)
     if index is None:
-        return None, f"above the sweep stop ({freq[-1]:.4g} Hz): the gain is still above 0 dB"
+        stop_text = format_eng(freq[-1], "Hz", 4)
+        return None, f"above the sweep stop ({stop_text}): the gain is still above 0 dB"
     return _bracketed(freq, gain_db, midband, index, index - 1, 0.0, evaluate_db), None
 
 
