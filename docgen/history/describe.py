@@ -28,6 +28,8 @@ def percent(fraction: float | None) -> str:
     """A relative change as a signed percentage (``+19.1 %``), or ``""``."""
     if fraction is None:
         return ""
+    if fraction == 0:
+        return "0 %"
     return f"{fraction * 100:+.3g} %".replace("-", MINUS)
 
 
