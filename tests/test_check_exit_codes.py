@@ -144,3 +144,32 @@ def test_notes_are_printed_on_request(tmp_path: Path, capsys) -> None:
     assert "n.md:6:1: note: R1 has no power rating" in out
     # Ohm's law: 5 V / 1 kΩ = 5 mA; the halved estimate is 50 % low
     assert "n.md:9:1: note: estimate R1 current ≈ 2.5 mA, solved 5 mA (error -50 %)" in out
+
+
+def _git(folder: Path, *args: str) -> None:
+    import os
+    import subprocess
+
+    env = dict(os.environ, GIT_AUTHOR_NAME="Test", GIT_AUTHOR_EMAIL="t@example.invalid",
+               GIT_COMMITTER_NAME="Test", GIT_COMMITTER_EMAIL="t@example.invalid",
+               GIT_AUTHOR_DATE="2026-01-05T10:00:00Z", GIT_COMMITTER_DATE="2026-01-05T10:00:00Z",
+               GIT_CONFIG_GLOBAL="/dev/null", GIT_CONFIG_SYSTEM="/dev/null")
+    subprocess.run(["git", *args], cwd=folder, env=env, check=True, capture_output=True)
+
+
+def test_approved_design_changed_since_approval(tmp_path: Path, capsys, monkeypatch) -> None:
+    """An approved page whose requirements changed after the approval commit exits 1."""
+    designs = tmp_path / "designs"
+    designs.mkdir()
+    page = _page(designs, "d.md", DIVIDER, "approved")
+    _git(tmp_path, "init", "-q", "-b", "main")
+    _git(tmp_path, "add", ".")
+    _git(tmp_path, "commit", "-q", "-m", "approve")
+    monkeypatch.chdir(tmp_path)
+    assert main(["check", "designs"]) == 0
+    capsys.readouterr()
+    page.write_text(page.read_text(encoding="utf-8").replace("4 V .. 6 V", "4.5 V .. 5.5 V"),
+                    encoding="utf-8")
+    assert main(["check", "designs"]) == 1
+    out = capsys.readouterr().out
+    assert "designs/d.md:4:11: error: changed since approval: requirements changed" in out

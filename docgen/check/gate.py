@@ -143,6 +143,23 @@ def check_design(design: Design, library: Mapping[str, ModelDef]) -> GateResult:
     return gate
 
 
+def approval_problem(design: Design, root: str) -> Diagnostic | None:
+    """An error when an approved design's circuit, models or requirements changed since its
+    approval (from git history; nothing when the history is not available)."""
+    if design.header.status != "approved":
+        return None
+    from docgen.history.approval import changed_since_approval
+
+    info = changed_since_approval(None, design.path, root)
+    if info is None:
+        return None
+    span = design.header.spans.get("approved") or design.header.spans.get("status") or Span(1, 1)
+    changes = "; ".join(info.get("changes", [])[:3])
+    return _at(design, span.line, span.col, "error", info["message"],
+               (f"changes: {changes}. " if changes else "") + "review the design again and "
+               "give it a new 'approved:' date")
+
+
 def exit_code(gate: GateResult) -> int:
     """2 when the design could not be checked, 1 when an error-level verdict or caution."""
     if gate.input_error:

@@ -101,12 +101,16 @@ def check_designs(check_run: CheckRun, args: argparse.Namespace) -> int:
     requirement and caution becomes a diagnostic.  Exit 1 when any of them is an error, 2 when
     a requirement or estimate line does not read or the circuit cannot be solved.
     """
-    from docgen.check.gate import check_design, exit_code
+    from docgen.check.gate import approval_problem, check_design, exit_code
 
     code = 0
     added: list[Diagnostic] = []
     for record, design in check_run.designs:
         gate = check_design(design, record.models_for(design))
+        changed = approval_problem(design, record.root if Path(record.root).is_dir()
+                                   else str(Path(record.root).parent))
+        if changed is not None:  # an approved design changed since approval: exit 1
+            gate.diagnostics.append(changed)
         added += gate.diagnostics
         check_run.notes += gate.notes
         check_run.reports.append(gate.report)
