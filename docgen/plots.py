@@ -16,6 +16,7 @@ from typing import Any, Literal
 
 WIDTH_IN = 7.0  # fits the page's text column at 96 dpi (about 670 px)
 ROW_IN = 2.6
+MARGIN_IN = (0.85, 0.15, 0.55, 0.12)  # left, right, bottom, top
 LIMIT_COLOUR = "#b03a2e"
 CURVE_COLOURS = ("#1f4e79", "#7a5c00", "#3d7a3d", "#6b3d7a")
 
@@ -77,16 +78,20 @@ def _eng(unit: str) -> Any:
 def _to_svg(fig: Any) -> str:
     plt = _pyplot()
     buffer = io.StringIO()
-    fig.savefig(buffer, format="svg", metadata={"Date": None, "Creator": "docgen"},
-                bbox_inches="tight", pad_inches=0.05)
+    fig.savefig(buffer, format="svg", metadata={"Date": None, "Creator": "docgen"})
     plt.close(fig)
     return buffer.getvalue()
 
 
 def _figure(rows: int, *, sharex: bool = True, height: float = ROW_IN) -> tuple[Any, list[Any]]:
     plt = _pyplot()
-    fig, axes = plt.subplots(rows, 1, figsize=(WIDTH_IN, height * rows), sharex=sharex,
-                             squeeze=False)
+    total = height * rows
+    fig, axes = plt.subplots(rows, 1, figsize=(WIDTH_IN, total), sharex=sharex, squeeze=False)
+    # Fixed margins in inches (not a "tight" bounding box): one drawing pass instead of two,
+    # and every figure of a kind lines up with the others.
+    fig.subplots_adjust(left=MARGIN_IN[0] / WIDTH_IN, right=1 - MARGIN_IN[1] / WIDTH_IN,
+                        bottom=MARGIN_IN[2] / total, top=1 - MARGIN_IN[3] / total,
+                        hspace=0.55 / height)
     return fig, [row[0] for row in axes]
 
 
@@ -202,6 +207,9 @@ def histogram(samples: Sequence[float], *, unit: str, label: str, bins: int = 30
                color=CURVE_COLOURS[0])
     else:
         ax.hist(list(samples), bins=bins, color=CURVE_COLOURS[0], histtype="stepfilled")
+    from matplotlib.ticker import MaxNLocator
+
+    ax.yaxis.set_major_locator(MaxNLocator(integer=True))
     ax.xaxis.set_major_formatter(_eng(unit))
     ax.set_xlabel(label)
     ax.set_ylabel("boards")

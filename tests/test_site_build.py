@@ -10,7 +10,15 @@ import re
 from pathlib import Path
 
 import pytest
-from site_helpers import broken_links, build, copy_fixtures, html_pages, links, parse_strict
+from site_helpers import (
+    FIXTURES,
+    broken_links,
+    build,
+    copy_fixtures,
+    html_pages,
+    links,
+    parse_strict,
+)
 
 HOSTILE_TITLE = "Odd <b>title</b> & \"quotes\" 'too'"
 
@@ -145,3 +153,16 @@ def test_rebuild_replaces_the_old_site_and_leaves_no_staging(tmp_path: Path) -> 
     build(designs, site, cache_dir=tmp_path / "cache")
     assert not (site / "stale-file.html").exists()
     assert sorted(p.name for p in tmp_path.iterdir()) == ["cache", "designs", "site"]
+
+
+def test_hazardous_supply_is_warned_prominently(tmp_path: Path) -> None:
+    """A 150 V DC supply exceeds extra-low voltage (IEC 61140: 120 V ripple-free DC, from
+    memory); the checks flag it and the pages show it above everything else."""
+    site = tmp_path / "site"
+    build(FIXTURES.parent / "site-hazard", site, cache_dir=tmp_path / "cache")
+    page = (site / "hv.html").read_text()
+    warning = page.index('class="caution caution-danger"')
+    assert warning < page.index('id="schematic"')
+    assert "HAZARDOUS VOLTAGE" in page and "Hazardous voltage:" in page
+    index = (site / "index.html").read_text()
+    assert "caution caution-danger" in index and 'href="hv.html"' in index
