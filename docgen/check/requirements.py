@@ -102,8 +102,9 @@ def _across(checked: Checked, results: dict[str, Any]) -> dict[str, Any]:
         found, reason = samples(checked.metric, results, what)
         if found is None:
             analysis = "spread" if what == "boards" else "temperature"
-            return {"verdict": "not computed", "reason": f"the {analysis} analysis is not "
-                    f"available: {reason}"}
+            if "did not run" in reason:
+                reason = f"the {analysis} analysis is not available ({reason})"
+            return {"verdict": "not computed", "reason": reason}
         values.extend(found)
     if not values:
         return {"verdict": "not computed", "reason": "no samples"}
