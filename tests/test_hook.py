@@ -127,3 +127,23 @@ def test_hook_rebuilds_the_site_with_history_after_each_commit(tmp_path):
     text = history.read_text(encoding="utf-8")
     assert third[:10] in text and second[:10] in text
     assert len(list(history.parent.glob("diff-*.html"))) == 2
+
+
+def test_ci_recipe_runs_real_commands_with_full_history():
+    """examples/ci/publish-site.yml: every docgen command it runs parses with docgen's own
+    argument parser, and it fetches the full history (history pages need every revision)."""
+    import re
+    import shlex
+    from pathlib import Path
+
+    from docgen.cli import build_parser
+
+    recipe = Path(__file__).resolve().parent.parent / "examples" / "ci" / "publish-site.yml"
+    text = recipe.read_text(encoding="utf-8")
+    assert re.search(r"^\s+fetch-depth: 0$", text, re.M)
+    assert re.search(r"^\s+path: \.docgen-cache$", text, re.M)
+    commands = re.findall(r"^\s+run: (docgen .*)$", text, re.M)
+    assert {shlex.split(c)[1] for c in commands} == {"build", "check"}
+    parser = build_parser()
+    for command in commands:
+        parser.parse_args(shlex.split(command)[1:])  # exits (fails the test) on a bad option
