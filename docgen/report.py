@@ -23,6 +23,9 @@ SECTION_PRINTERS: list[tuple[str, str]] = [
     ("op", "docgen.report:print_op"),
     ("ac", "docgen.report_small_signal:print_ac"),
     ("noise", "docgen.report_small_signal:print_noise"),
+    ("checks", "docgen.report_checks:print_checks"),
+    ("cautions", "docgen.report_checks:print_cautions"),
+    ("estimates", "docgen.report_checks:print_estimates"),
 ]
 
 #: Sections that are not results of an analysis (never printed as a section).

@@ -173,3 +173,12 @@ def test_approved_design_changed_since_approval(tmp_path: Path, capsys, monkeypa
     assert main(["check", "designs"]) == 1
     out = capsys.readouterr().out
     assert "designs/d.md:4:11: error: changed since approval: requirements changed" in out
+
+
+def test_solve_prints_the_check_sections(tmp_path: Path, capsys) -> None:
+    path = _page(tmp_path, "d.md", DIVIDER, "approved", "6 V .. 7 V")
+    assert main(["solve", str(path)]) == 0
+    out = capsys.readouterr().out
+    assert "Requirements" in out
+    row = next(line for line in out.splitlines() if line.strip().startswith("voltage at mid"))
+    assert row.split()[-1] == "fail" and "6 V .. 7 V" in row
