@@ -162,3 +162,12 @@ def test_hand_estimates_in_the_notes_agree_with_the_solver(name: str) -> None:
         assert row.get("reason") is None or row["reason"].startswith("not computed"), row
         if row["error_percent"] is not None:
             assert abs(row["error_percent"]) < 10, row
+
+
+@pytest.mark.parametrize("name", DESIGN_FILES)
+def test_design_draws_a_schematic_that_reads_back_as_its_netlist(name: str) -> None:
+    from docgen.draw import draw
+
+    schematic = draw(design(name), solved(name)["op"]["nets"])
+    assert schematic.report.ok, schematic.report.problems
+    assert schematic.svg().lstrip().startswith(("<svg", "<?xml"))
