@@ -48,6 +48,8 @@ def _field(section: Mapping[str, Any], key: str, name: str) -> Any:
     value = section.get(key)
     if value is None:
         reason = section.get(key.rsplit("_", 1)[0] + "_reason") or section.get(f"{key}_reason")
+        if reason is None and key in section:
+            reason = f"the analysis gave no value for '{name}.{key}'"
         raise _Missing(reason or f"not computed: '{name}.{key}' is not in the results")
     return value
 
