@@ -42,6 +42,9 @@ FLAT_SPAN_RATIO = 2.0
 #: a gain peaking at 0 dB within this margin (a passive network) has no unity-gain frequency.
 UNITY_MARGIN_DB = 1e-6
 
+#: the reason given for every figure of a response that is zero over the whole sweep.
+NO_TRANSFER = "no signal reaches the output: the gain is zero over the whole sweep"
+
 GainFunction = Callable[[np.ndarray], np.ndarray]
 
 
@@ -184,6 +187,8 @@ def find_corner(
     ``dc_gain_db`` (the gain at 0 Hz, ``None`` if unknown) lets a missing low corner be told
     apart: a direct-coupled stage keeps its gain down to DC.
     """
+    if not math.isfinite(midband.gain_db):
+        return None, NO_TRANSFER
     edge = "start" if side == "low" else "stop"
     if not midband.flat and midband.at_edge is not None and midband.at_edge != edge:
         return None, ("not measured: the gain is still changing at the sweep "
@@ -224,6 +229,8 @@ def find_unity_gain(
     evaluate_db: GainFunction | None = None,
 ) -> tuple[float | None, str | None]:
     """The first frequency above midband where the gain falls through 0 dB, or ``None`` and why."""
+    if not math.isfinite(midband.gain_db):
+        return None, NO_TRANSFER
     if midband.gain_db <= UNITY_MARGIN_DB:
         midband_text = format_eng(midband.gain_db, "dB")
         return None, f"the gain never rises above 0 dB (midband {midband_text})"

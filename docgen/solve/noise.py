@@ -221,7 +221,7 @@ def _number(value: float) -> float | None:
 
 def _figures(
     freq: Array, total: Array, source_power: Array, kelvin: float, signal_rms: float,
-    gain_at_signal: float,
+    gain_at_signal: float, source_resistance: float,
 ) -> dict[str, Any]:
     """SNR and noise figure from the output noise (per source already summed)."""
     out: dict[str, Any] = {}
@@ -234,9 +234,14 @@ def _figures(
     figure = spectra.noise_figure_db(float(spectra.integrate_band(freq, total)), source_band,
                                      kelvin)
     out["figure_db"] = figure
-    out["figure_reason"] = None if figure is not None else (
-        "the signal has no source resistance (source=0 Ω), so there is no source noise to "
-        "compare with: the noise figure is undefined")
+    if figure is not None:
+        out["figure_reason"] = None
+    elif source_resistance <= 0:
+        out["figure_reason"] = ("the signal has no source resistance (source=0 Ω), so there is "
+                                "no source noise to compare with: the noise figure is undefined")
+    else:
+        out["figure_reason"] = ("none of the source resistance's noise reaches the output, so "
+                                "the noise figure is undefined")
     return out
 
 
@@ -277,6 +282,6 @@ def analyse(ctx: Any) -> dict[str, Any]:
             "the gain is zero somewhere in the band, so the input-referred noise is unbounded"),
         "signal_rms_v": float(signal["value"][0]) / math.sqrt(2.0),
         **_figures(freq, total, source_power, kelvin, float(signal["value"][0]) / math.sqrt(2.0),
-                   gain_at_signal),
+                   gain_at_signal, float(signal["source"][0])),
         "contributors": [c for c in spectra.rank_contributors(powers) if c["share"] > 0],
     }

@@ -95,16 +95,27 @@ def endpoints(ctx: Any) -> tuple[str, str]:
         signals = [d.name for d in circuit.devices if d.kind == "signal"]
         if len(signals) != 1:
             raise AnalysisError(circuit.diagnostic(
-                bench.spans.get("input", Span(1, 1)),
+                _bench_span(circuit, "input"),
                 "the bench names no input, so the response has no stimulus",
                 "add a line 'input NAME' to the bench block, naming the signal part"))
         input_part = signals[0]
     if bench.output is None or bench.output == "gnd":
         raise AnalysisError(circuit.diagnostic(
-            bench.spans.get("output", Span(1, 1)),
+            _bench_span(circuit, "output"),
             "the bench names no output net, so there is no response to report",
             "add a line 'output NET' to the bench block"))
     return input_part, bench.output
+
+
+def _bench_span(circuit: Any, key: str) -> Span:
+    """Where to point for a missing bench key: the key if given, else the bench block's fence."""
+    span = circuit.bench.spans.get(key)
+    if span is not None:
+        return span
+    for number, line in enumerate(circuit.lines, start=1):
+        if line.lstrip().startswith(("```bench", "~~~bench")):
+            return Span(number, line.index("bench") + 1, len("bench"))
+    return Span(1, 1)
 
 
 def singular(ctx: Any, input_part: str) -> AnalysisError:
@@ -163,9 +174,9 @@ def analyse(ctx: Any) -> dict[str, Any]:
         "phase_deg": _plain(phase[:-1]),
         "gain_from_input_net_db": _plain(curves.magnitude_db(ports["gain_from_input_net"][:-1])),
         "midband_gain_db": _number(mid.gain_db),
-        "midband_freq_hz": _number(mid.freq_hz),
+        "midband_freq_hz": _number(mid.freq_hz) if math.isfinite(mid.gain_db) else None,
         "midband_flat": mid.flat,
-        "midband_note": mid.note,
+        "midband_note": mid.note if math.isfinite(mid.gain_db) else curves.NO_TRANSFER,
         "f_low_hz": f_low,
         "f_low_reason": low_why,
         "f_high_hz": f_high,
@@ -174,7 +185,8 @@ def analyse(ctx: Any) -> dict[str, Any]:
         "unity_gain_reason": unity_why,
         "signal_freq_hz": signal_hz,
         "gain_at_signal_db": _number(curves.magnitude_db(gain[-1])),
-        "phase_at_signal_deg": _number(_phase_at_signal(phase, freq, signal_hz)),
+        "phase_at_signal_deg": (_number(_phase_at_signal(phase, freq, signal_hz))
+                                if gain[-1] != 0 else None),
         "zin_ohm": zin,
         "zin_phase_deg": zin_phase,
         "zin_reason": None if zin is not None else (
