@@ -123,6 +123,11 @@ FORMS: tuple[Form, ...] = (
 )
 
 SLOT_UNITS = {"freq": "Hz", "amplitude": "V"}
+#: Abbreviations people type, and the vocabulary's whole words for them (for hints only).
+SHORT_FORMS = {"SNR": "signal-to-noise ratio", "NF": "noise figure", "Zin": "input impedance",
+               "Zout": "output impedance", "Ic": "collector current", "Vce": "collector-emitter "
+               "voltage", "Vbe": "base-emitter voltage", "Id": "drain current", "f3dB": "high "
+               "corner", "GBW": "unity-gain frequency", "PM": "phase margin", "GM": "gain margin"}
 _NAME = re.compile(r"[A-Za-z][A-Za-z0-9_]*\Z")
 
 
@@ -309,7 +314,8 @@ def _unknown(
     if slots and not literal:
         return MetricError(f"expected {' or '.join(slots)} at '{word}'", offset + col, len(word),
                            _quantity_hint(tokens[at:at + 2]))
-    hint = did_you_mean(word, literal or _vocabulary_words())
+    hint = (f"write '{SHORT_FORMS[word]}'" if word in SHORT_FORMS
+            else did_you_mean(word, literal or _vocabulary_words()))
     return MetricError(f"unknown word '{word}' in metric", offset + col, len(word),
                        hint or "see the Metrics section of docs/format.md")
 

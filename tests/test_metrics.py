@@ -64,6 +64,8 @@ ERROR_CASES = [
     ("Q1 current please", 12, "'please'", "remove"),
     ("drift of drift of yield", 10, "nested", None),
     ("", 1, "empty", "gain at 1 kHz"),
+    ("SNR", 1, "'SNR'", "signal-to-noise ratio"),
+    ("Q1 Ic", 4, "'Ic'", "collector current"),
 ]
 
 
