@@ -126,8 +126,8 @@ SLOT_UNITS = {"freq": "Hz", "amplitude": "V"}
 #: Abbreviations people type, and the vocabulary's whole words for them (for hints only).
 SHORT_FORMS = {"SNR": "signal-to-noise ratio", "NF": "noise figure", "Zin": "input impedance",
                "Zout": "output impedance", "Ic": "collector current", "Vce": "collector-emitter "
-               "voltage", "Vbe": "base-emitter voltage", "Id": "drain current", "f3dB": "high "
-               "corner", "GBW": "unity-gain frequency", "PM": "phase margin", "GM": "gain margin"}
+               "voltage", "Vbe": "base-emitter voltage", "Id": "drain current",
+               "f3dB": "low corner' or 'high corner", "PM": "phase margin", "GM": "gain margin"}
 _NAME = re.compile(r"[A-Za-z][A-Za-z0-9_]*\Z")
 
 
