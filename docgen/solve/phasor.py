@@ -27,7 +27,11 @@ def system_matrix(G: np.ndarray, C: np.ndarray, freq: np.ndarray) -> np.ndarray:
     G = np.asarray(G, dtype=float)
     C = np.asarray(C, dtype=float)
     omega = 2.0 * np.pi * np.asarray(freq, dtype=float)
-    return G[..., None, :, :] + 1j * omega[:, None, None] * C[..., None, :, :]
+    shape = np.broadcast_shapes(G.shape[:-2], C.shape[:-2]) + (len(omega),) + G.shape[-2:]
+    matrix = np.empty(shape, dtype=complex)  # filled in place: no complex temporaries
+    matrix.real[...] = G[..., None, :, :]
+    matrix.imag[...] = omega[:, None, None] * C[..., None, :, :]
+    return matrix
 
 
 def solve(G: np.ndarray, C: np.ndarray, freq: np.ndarray, rhs: np.ndarray) -> np.ndarray:
