@@ -58,6 +58,9 @@ def _pyplot() -> Any:
         "axes.linewidth": 0.7,
         "lines.linewidth": 1.4,
         "figure.dpi": 96,
+        "figure.facecolor": "none",  # the page shows through around the axes
+        "savefig.facecolor": "none",
+        "axes.facecolor": "white",
         "path.simplify": False,
     })
     return plt
@@ -124,8 +127,11 @@ def _draw_marks(axes: Sequence[Any], marks: Sequence[Mark]) -> None:
 
 
 def _log_x(ax: Any, unit: str) -> None:
+    from matplotlib.ticker import NullFormatter
+
     ax.set_xscale("log")
     ax.xaxis.set_major_formatter(_eng(unit))
+    ax.xaxis.set_minor_formatter(NullFormatter())
 
 
 def frequency_response(freq_hz: Sequence[float], gain_db: Sequence[float],
@@ -155,7 +161,10 @@ def curves(freq_hz: Sequence[float], series: Sequence[tuple[str, Sequence[float]
         ax.plot(freq_hz, values, color=CURVE_COLOURS[index % len(CURVE_COLOURS)], label=name)
     _log_x(ax, "Hz")
     if log_y:
+        from matplotlib.ticker import NullFormatter
+
         ax.set_yscale("log")
+        ax.yaxis.set_minor_formatter(NullFormatter())
     ax.yaxis.set_major_formatter(_eng(unit))
     ax.set_ylabel(ylabel)
     ax.set_xlabel("frequency")

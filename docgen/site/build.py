@@ -95,8 +95,9 @@ def solve_all(view: RecordView, wanted: list[str], options: BuildOptions,
     if cache_root is None:
         cache_root = default_cache_dir(options.designs_dir)
     cache = BundleCache(None if cache_root is False else Path(cache_root))  # type: ignore[arg-type]
-    keys = {rel: cache_key(view.entries[rel].source, view.entries[rel].library_bytes)
-            for rel in wanted}
+    # The path is part of the key: results and diagnostics name the file as it was given.
+    keys = {rel: cache_key(view.entries[rel].source, view.entries[rel].library_bytes,
+                           extra=view.entries[rel].path) for rel in wanted}
     bundles: dict[str, dict[str, Any]] = {}
     missing = []
     for rel in wanted:
@@ -110,7 +111,8 @@ def solve_all(view: RecordView, wanted: list[str], options: BuildOptions,
     with _progress(len(wanted), options.progress) as bar:
         bar.update(len(wanted) - len(missing))
         for rel, bundle in _compute(view, missing, jobs, options.designs_dir):
-            cache.put(keys[rel], bundle)
+            if not bundle.get("internal_error"):  # a docgen bug is retried, never cached
+                cache.put(keys[rel], bundle)
             bundles[rel] = bundle
             report.solved.append(rel)
             bar.update(1)

@@ -42,6 +42,7 @@ def compute_bundle(design: Design, library: Mapping[str, ModelDef]) -> dict[str,
         results = None
     except Exception as exc:  # noqa: BLE001 - one design's crash must not stop the build
         bundle["errors"] = [_internal_error(design, "solving", exc)]
+        bundle["internal_error"] = True
         results = None
     bundle["results"] = results
     if results is not None:
@@ -49,6 +50,7 @@ def compute_bundle(design: Design, library: Mapping[str, ModelDef]) -> dict[str,
             bundle["sections"] = build_sections(design, results)
         except Exception as exc:  # noqa: BLE001
             bundle["errors"].append(_internal_error(design, "plotting", exc))
+            bundle["internal_error"] = True
     _draw(design, results, bundle)
     return bundle
 
@@ -68,6 +70,7 @@ def _draw(design: Design, results: dict[str, Any] | None, bundle: dict[str, Any]
         bundle["schematic_problem"] = "; ".join(d.message for d in exc.diagnostics)
     except Exception as exc:  # noqa: BLE001
         bundle["schematic_problem"] = f"docgen could not draw it ({type(exc).__name__}: {exc})"
+        bundle["internal_error"] = True
 
 
 def init_worker(designs_dir: str) -> None:

@@ -18,6 +18,7 @@ from docgen.site.marks import marks_for
 from docgen.units import format_eng
 
 Section = dict[str, Any]
+MAX_CONTRIBUTORS = 10
 Results = dict[str, Any]
 
 
@@ -198,15 +199,16 @@ def noise(design: Design, results: Results) -> Section | None:
                                      plots.curves(freq, series, unit="V/√Hz",
                                                   ylabel="density", marks=marks)))
     rows = []
-    for item in section.get("contributors") or []:
+    for item in (section.get("contributors") or [])[:MAX_CONTRIBUTORS]:
         if isinstance(item, dict):
             share = item.get("share")
             rows.append([str(item.get("part", "")), str(item.get("mechanism", "")),
                          format_eng(share * 100 if isinstance(share, (int, float)) else None,
                                     "%")])
     if rows:
-        out["tables"].append(table("Largest contributors (share of output noise power over "
-                                   "the band)", ["part", "mechanism", "share"], rows,
+        out["tables"].append(table("Largest contributors, up to ten (share of output noise power "
+                                   "over the band; results.json lists all)",
+                                   ["part", "mechanism", "share"], rows,
                                    [False, False, True]))
     return out
 
