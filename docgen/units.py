@@ -121,6 +121,11 @@ def _unknown_unit(rest: str, offset: int, number: str) -> QuantityError:
     if rest[0] == "U" and (rest[1:] == "" or rest[1:] in _SPELLING_TO_UNIT):
         return QuantityError("'U' is not an SI prefix; micro is 'u' or 'µ'",
                              f"did you mean '{number}u{rest[1:]}'?", offset, 1)
+    if rest.endswith(("pp", "rms")) and rest not in ("pp", "rms"):
+        qualifier = "pp" if rest.endswith("pp") else "rms"
+        return QuantityError(f"unknown unit '{rest}'",
+                             f"write '{number} {rest[: -len(qualifier)]} {qualifier}'",
+                             offset, width)
     if rest == "C":
         return QuantityError("'C' is the coulomb; a temperature is written in °C, degC or K",
                              f"did you mean '{number} °C'?", offset, 1)
@@ -296,11 +301,13 @@ def round_results(obj: object, n: int = 6) -> object:
 
     Dicts, lists and tuples are walked (tuples become lists, as JSON has them); numpy scalars
     and arrays become plain Python numbers and lists.  Ints, bools, strings and ``None`` pass.
+    NaN and infinities become ``None`` (JSON has no such numbers; results files say ``null``
+    for a value that does not exist).
     """
     if isinstance(obj, bool) or obj is None or isinstance(obj, str):
         return obj
     if isinstance(obj, (float, np.floating)):
-        return round_sig(float(obj), n)
+        return round_sig(float(obj), n) if math.isfinite(obj) else None
     if isinstance(obj, (int, np.integer)):
         return int(obj)
     if isinstance(obj, np.ndarray):

@@ -81,6 +81,8 @@ def test_values_with_units(text: str, value: float, unit: str) -> None:
     ("abc", "'abc' is not a number", "a value starts with a number, e.g. '4.7k' or '4k7'"),
     ("3 mdB", "'dB' does not take an SI prefix", "write '3 dB'"),
     ("4.7U", "'U' is not an SI prefix", "did you mean '4.7u'?"),
+    ("4Vpp", "unknown unit 'Vpp'", "write '4 V pp'"),
+    ("2 mVrms", "unknown unit 'mVrms'", "write '2 mV rms'"),
 ])
 def test_errors(text: str, message: str, hint: str | None) -> None:
     with pytest.raises(QuantityError) as caught:
@@ -177,8 +179,10 @@ def test_round_sig_edges() -> None:
 
 def test_round_results_walks_everything() -> None:
     data = {"a": 1 / 3, "b": [2 / 3, (1.0, 7)], "c": np.float64(1 / 7), "d": np.arange(2) / 3,
-            "e": "text", "f": True, "g": None, "h": np.int64(5)}
+            "e": "text", "f": True, "g": None, "h": np.int64(5),
+            "i": [math.inf, -math.inf, math.nan, np.float64("nan")]}
     rounded = round_results(data)
     assert rounded == {"a": 0.333333, "b": [0.666667, [1.0, 7]], "c": 0.142857,
-                       "d": [0.0, 0.333333], "e": "text", "f": True, "g": None, "h": 5}
+                       "d": [0.0, 0.333333], "e": "text", "f": True, "g": None, "h": 5,
+                       "i": [None, None, None, None]}
     assert type(rounded["c"]) is float and type(rounded["h"]) is int
