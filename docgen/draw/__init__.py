@@ -56,16 +56,18 @@ def layout(design: Design, op_voltages: Mapping[str, float] | None = None,
     return wire(placement)
 
 
-def draw(design: Design, op_voltages: Mapping[str, float] | None = None) -> Schematic:
+def draw(design: Design, op_voltages: Mapping[str, float] | None = None,
+         style: str | None = None) -> Schematic:
     """Draw ``design``'s schematic and check it; falls back to the layered layout when the
-    amplifier layout's drawing fails its read-back."""
+    amplifier layout's drawing fails its read-back (``style="layered"`` asks for it)."""
     from docgen.draw import readback
     from docgen.draw.render import to_drawing
 
     if not design.parts:
         raise ValueError(f"{design.path}: nothing to draw (no circuit parts)")
     hints = read_hints(design)
-    styles = ["layered"] if hints.arrangement == "layered" else ["amplifier", "layered"]
+    chosen = style or hints.arrangement
+    styles = ["layered"] if chosen == "layered" else ["amplifier", "layered"]
     result = None
     for style in styles:
         placement = layout(design, op_voltages, hints, style)

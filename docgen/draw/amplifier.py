@@ -117,8 +117,8 @@ class _Builder:
         for part in list(self.middle):
             self._make_chain(part)
         self.middle.sort(key=lambda p: (classify.input_rank(p, self.ranks),
-                                        max(self.ranks.get(n, 0) for n in p.nets
-                                            if n in self.ranks)))
+                                        max((self.ranks[n] for n in p.nets
+                                             if n in self.ranks), default=0)))
         self.middle = self.hints.order(self.middle)
 
     def _make_chain(self, part: Part) -> None:

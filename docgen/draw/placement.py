@@ -19,7 +19,7 @@ from docgen.draw.route import PITCH, Grid, Node, node_of, nodes_in, point_of
 from docgen.draw.symbols import Box, Point
 
 LABEL_GAP = 0.2
-MARGIN = 6.0  # free border around the parts for wires and symbols
+MARGIN = 4.0  # free border around the parts for wires and symbols
 
 
 @dataclass

@@ -14,6 +14,7 @@ boxes with a small margin.
 from __future__ import annotations
 
 from dataclasses import dataclass, field
+from itertools import pairwise
 from typing import Any
 
 from docgen.design import Design
@@ -99,6 +100,9 @@ def geometry(drawing: Any) -> Geometry:
                 geo.texts.append((segment.text, tuple(box)))
         if isinstance(element, Line):
             geo.wires.append((_round(anchors["start"]), _round(anchors["end"])))
+        elif hasattr(element, "docgen_wire"):
+            path = [_round(p) for p in element.segments[0].xform(element.transform).path]
+            geo.wires.extend(pairwise(path))
         elif hasattr(element, "docgen_part"):
             name = element.docgen_part
             for terminal, anchor in element.docgen_anchors.items():
@@ -151,6 +155,26 @@ def inside(point: Point, segment: Segment) -> bool:
     return EPS < dot < length - EPS
 
 
+def lying_inside(points: list[Point], segments: list[Segment]) -> list[tuple[int, int]]:
+    """Index pairs (point, segment) where the point lies strictly inside the segment
+    (:func:`inside` for every pair at once)."""
+    import numpy as np
+
+    if not points or not segments:
+        return []
+    p = np.asarray(points, dtype=float)[:, None, :]
+    a = np.asarray([s[0] for s in segments], dtype=float)[None, :, :]
+    b = np.asarray([s[1] for s in segments], dtype=float)[None, :, :]
+    d = b - a
+    r = p - a
+    cross = d[..., 0] * r[..., 1] - d[..., 1] * r[..., 0]
+    scale = np.maximum(1.0, np.abs(d[..., 0]) + np.abs(d[..., 1]))
+    dot = r[..., 0] * d[..., 0] + r[..., 1] * d[..., 1]
+    length = d[..., 0] ** 2 + d[..., 1] ** 2
+    hit = (np.abs(cross) <= EPS * scale) & (dot > EPS) & (dot < length - EPS)
+    return [(int(i), int(j)) for i, j in zip(*np.nonzero(hit), strict=True)]
+
+
 def connectivity(geo: Geometry) -> list[set[tuple[str, str]]]:
     """The drawing's nets: sets of (part, terminal) joined by its conductors and port names."""
     import numpy as np
@@ -162,7 +186,7 @@ def connectivity(geo: Geometry) -> list[set[tuple[str, str]]]:
                     | {p for _, p in geo.ports})
     index = {p: i for i, p in enumerate(points)}
     links = [(index[a], index[b]) for a, b in segments]
-    links += [(index[p], index[s[0]]) for s in segments for p in points if inside(p, s)]
+    links += [(i, index[segments[j][0]]) for i, j in lying_inside(points, segments)]
     named: dict[str, Point] = {}
     links += [(index[named.setdefault(name, p)], index[p]) for name, p in geo.ports]
     rows = np.array([a for a, _ in links] or [0], dtype=int)
@@ -231,8 +255,9 @@ def _degree(geo: Geometry) -> dict[Point, int]:
             count[p] = count.get(p, 0) + 1
     for p in list(geo.pins.values()) + [p for _, p in geo.ports]:
         count[p] = count.get(p, 0) + 1
-    for point in list(count):
-        count[point] += 2 * sum(inside(point, s) for s in geo.wires)
+    points = list(count)
+    for i, _j in lying_inside(points, geo.wires):
+        count[points[i]] += 2
     return count
 
 

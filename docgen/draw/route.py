@@ -117,55 +117,77 @@ class Grid:
     # ---- searching -----------------------------------------------------------------------
 
     def search(self, net: str, start: Node,
-               goal: Callable[[Node, Node | None], int | None]) -> list[Node] | None:
+               goal: Callable[[Node, Node | None], int | None],
+               towards: tuple[int, int, int, int] | None = None,
+               targets: set[Node] | None = None) -> list[Node] | None:
         """Cheapest orthogonal path from ``start`` to a node ``goal`` accepts.
 
-        ``goal(node, arriving_direction)`` returns the extra cost of ending there, or ``None``.
+        ``goal(node, arriving_direction)`` returns the extra cost of ending there, or ``None``;
+        it is asked only about ``targets`` if those are given.  ``towards``, the box all goals
+        lie in, makes the search an A* search (the distance to the box never overestimates
+        the cost left).
         """
+        walls, crossable = self._obstacles(net)
+        i0, j0, i1, j1 = self.bounds
+        x0, y0, x1, y1 = towards if towards is not None else (0, 0, 0, 0)
+        guided = towards is not None
         first = self.outward.get(start)
-        queue: list[tuple[int, int, Node, Node | None, bool]] = [(0, 0, start, first, False)]
+        queue: list[tuple[int, int, int, Node, Node | None, bool]] = [(0, 0, 0, start, first,
+                                                                        False)]
         best: dict[tuple[Node, Node | None], int] = {(start, first): 0}
         parent: dict[tuple[Node, Node | None], tuple[Node, Node | None] | None] = {
             (start, first): None}
         counter = 0
+        pop, push = heapq.heappop, heapq.heappush
         while queue:
-            cost, _, node, heading, finished = heapq.heappop(queue)
+            _, _, cost, node, heading, finished = pop(queue)
             state = (node, heading)
             if finished:
                 return self._unwind(parent, state)
-            if cost > best.get(state, 1 << 30):
+            if cost > best[state]:
                 continue
-            crossing = self.owner.get(node, net) != net
+            crossing = node in crossable
             for move in MOVES:
-                if (crossing and move != heading) or (
-                        heading is not None and move == (-heading[0], -heading[1])):
+                if heading is not None and (move[0] == -heading[0] and move[1] == -heading[1]
+                                            or crossing and move != heading):
                     continue
                 nxt = (node[0] + move[0], node[1] + move[1])
                 new_cost = cost + 1 + (BEND_COST if heading is not None and move != heading else 0)
-                extra = goal(nxt, move) if nxt != start else None
+                extra = (goal(nxt, move) if nxt != start and (targets is None or nxt in targets)
+                         else None)
                 if extra is not None:
                     new_cost += extra
-                elif not self._passable(net, nxt, move):
+                elif (nxt in walls or not (i0 <= nxt[0] <= i1 and j0 <= nxt[1] <= j1)
+                      or crossable.get(nxt, "") == ("h" if move[1] == 0 else "v")):
                     continue
                 key = (nxt, move)
                 if new_cost < best.get(key, 1 << 30):
                     best[key] = new_cost
                     parent[key] = state
                     counter += 1
-                    heapq.heappush(queue, (new_cost, counter, nxt, move, extra is not None))
+                    left = 0
+                    if guided:
+                        dx = max(0, x0 - nxt[0], nxt[0] - x1)
+                        dy = max(0, y0 - nxt[1], nxt[1] - y1)
+                        # going both across and along needs at least one more bend
+                        left = dx + dy + (BEND_COST if dx and dy else 0)
+                    push(queue, (new_cost + left, counter, new_cost, nxt, move,
+                                 extra is not None))
         return None
 
-    def _passable(self, net: str, node: Node, move: Node) -> bool:
-        if not self._inside(node) or node in self.blocked:
-            return False
-        if self.reserved.get(node, net) != net:
-            return False
-        holder = self.owner.get(node)
-        if holder is None:
-            return True
-        if holder == net or node in self.fixed or node in self.crossings:
-            return False
-        return self.axes.get(node) == {"v" if move[1] == 0 else "h"}
+    def _obstacles(self, net: str) -> tuple[set[Node], dict[Node, str]]:
+        """Nodes ``net`` may not enter, and the crossable nodes of other nets with the axis
+        their owner runs along (a crossing must go the other way)."""
+        walls = set(self.blocked) | self.crossings
+        walls.update(n for n, holder in self.reserved.items() if holder != net)
+        crossable: dict[Node, str] = {}
+        for node, holder in self.owner.items():
+            used = self.axes.get(node, set())
+            if holder == net or node in self.fixed or len(used) != 1:
+                walls.add(node)
+            else:
+                crossable[node] = next(iter(used))
+        return walls, crossable
 
     @staticmethod
     def _unwind(parent: dict, state: tuple[Node, Node | None]) -> list[Node]:
@@ -189,7 +211,11 @@ class Grid:
 
     def connect(self, net: str, start: Node) -> bool:
         """Route ``start`` (a pin) to the net's existing tree; False if no path exists."""
-        path = self.search(net, start, lambda node, move: self.target_cost(net, node, move))
+        tree = self.tree.get(net, set())
+        box = (min(n[0] for n in tree), min(n[1] for n in tree), max(n[0] for n in tree),
+               max(n[1] for n in tree)) if tree else None
+        path = self.search(net, start, lambda node, move: self.target_cost(net, node, move),
+                           box, tree)
         if path is None:
             return False
         self.lay(net, path)

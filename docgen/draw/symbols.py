@@ -18,7 +18,6 @@ up.
 from __future__ import annotations
 
 from dataclasses import dataclass
-from itertools import pairwise
 from typing import Any
 
 Point = tuple[float, float]
@@ -207,13 +206,18 @@ def make_part(drawing: Any, part: Any, orientation: str, origin: Point) -> Any:
 
 
 def add_wire(drawing: Any, points: list[Point]) -> Any:
-    """An orthogonal polyline through ``points`` (each segment one straight ``Line``)."""
-    import schemdraw.elements as elm
+    """An orthogonal polyline through ``points``, as one element (its segments read back as
+    separate straight conductors)."""
+    from schemdraw.elements import Element
+    from schemdraw.segments import Segment
 
-    last = None
-    for a, b in pairwise(points):
-        last = drawing.add(elm.Line().at(a).to(b))
-    return last
+    x0, y0 = points[0]
+    element = Element()
+    element.segments.append(Segment([(x - x0, y - y0) for x, y in points]))
+    element.anchors["start"] = (0, 0)
+    element.anchors["end"] = (points[-1][0] - x0, points[-1][1] - y0)
+    element.docgen_wire = True
+    return drawing.add(element.at(points[0]).right())
 
 
 def add_text(drawing: Any, text: str, at: Point, halign: str, valign: str,
