@@ -115,6 +115,28 @@ def limit_junction(v_new: Array, v_old: Array, n_vt: Array, v_critical: Array) -
     return np.where(big_step, limited, v_new)
 
 
+def limit_channel(u_new: Array, u_old: Array, threshold: Array) -> Array:
+    """Damp Newton steps of a FET's (vGS, vDS) so the square law is entered gradually.
+
+    A gate step is at most 1 V plus the present overdrive, and a channel that was off turns on
+    at most 0.5 V past threshold in one step; a drain step is at most 1 V plus the present
+    |vDS|, and a sign reversal of vDS stops at 0.5 V the other way.  Steps inside those
+    bounds pass unchanged, so the converged point is the true one.
+    """
+    vgs_new, vds_new = u_new[..., 0], u_new[..., 1]
+    vgs_old, vds_old = u_old[..., 0], u_old[..., 1]
+    overdrive = vgs_old - threshold
+    gate_room = 1.0 + np.abs(overdrive)
+    vgs = np.clip(vgs_new, vgs_old - gate_room, vgs_old + gate_room)
+    turning_on = (overdrive <= 0) & (vgs > threshold + 0.5)
+    vgs = np.where(turning_on, np.maximum(threshold + 0.5, vgs_old), vgs)
+    drain_room = 1.0 + np.abs(vds_old)
+    vds = np.clip(vds_new, vds_old - drain_room, vds_old + drain_room)
+    reversed_ = (np.sign(vds) * np.sign(vds_old) < 0) & (np.abs(vds) > 0.5)
+    vds = np.where(reversed_, 0.5 * np.sign(vds), vds)
+    return np.stack([vgs, vds], axis=-1)
+
+
 class DiodeCurrent(NamedTuple):
     """Junction current (anode to cathode) and its conductance."""
 

@@ -359,9 +359,21 @@ def fet_model(kind: str, values: Mapping[str, Array]) -> Evaluate:
     return evaluate
 
 
+def fet_threshold(kind: str, values: Mapping[str, Array]) -> Array:
+    """The square law's threshold in normalised polarity (−|VP| for a JFET, |VT| for a MOSFET)."""
+    if kind in ("njfet", "pjfet"):
+        return -values["pinch_off_voltage"]
+    return values["threshold_voltage"]
+
+
 def _stamp_fet(ctx: _StampContext) -> None:
     evaluate = fet_model(ctx.device.kind, ctx.values)
-    _companion(ctx, (0, 1, 2), FET_PROJECTION, POLARITY[ctx.device.kind], evaluate, None)
+    threshold = fet_threshold(ctx.device.kind, ctx.values)[:, None]
+
+    def limit(u_new: Array, u_old: Array) -> Array:
+        return physics.limit_channel(u_new, u_old, threshold[:, 0])
+
+    _companion(ctx, (0, 1, 2), FET_PROJECTION, POLARITY[ctx.device.kind], evaluate, limit)
 
 
 # ------------------------------------------------------------------------- op-amp

@@ -103,6 +103,30 @@ def _solve_batch(matrix: Array, rhs: Array) -> tuple[Array, Array]:
         return x, singular
 
 
+def voltage_span(problem: Problem) -> Array:
+    """``(S,)`` the largest node-voltage change allowed in one Newton step.
+
+    Twice the sum of the supply voltages (at least 1 V): a linearisation far from the solution
+    (a device off, an op-amp stage at its limit) can ask for thousands of volts; a step that
+    long is scaled back along its own direction.  A node that really must move further (a
+    current source into a large resistor) still gets there in a few steps.
+    """
+    total = np.zeros(problem.samples)
+    for device in problem.circuit.devices:
+        if device.kind == "supply":
+            total += np.abs(problem.values[device.name]["value"])
+        elif device.kind == "signal":
+            total += np.abs(problem.values[device.name]["offset"])
+    return np.maximum(2.0 * total, 1.0)
+
+
+def _damp(x: Array, x_new: Array, node_count: int, span: Array) -> tuple[Array, Array]:
+    """Scale each sample's step so no node voltage moves more than ``span``."""
+    longest = np.max(np.abs(x_new[:, :node_count] - x[:, :node_count]), axis=1, initial=0.0)
+    factor = np.minimum(1.0, span / np.maximum(longest, 1e-300))
+    return x + factor[:, None] * (x_new - x), factor < 1.0
+
+
 def newton(
     problem: Problem,
     x0: Array,
@@ -119,6 +143,7 @@ def newton(
     unsettled = np.full(samples, -1)
     singular = np.zeros(samples, dtype=bool)
     node_count = problem.layout.node_count
+    span = voltage_span(problem)
     absolute = np.where(np.arange(problem.layout.size) < node_count,
                         options.voltage_tolerance, options.current_tolerance)
     for _ in range(options.max_iterations):
@@ -127,6 +152,8 @@ def newton(
         x_new, bad = _solve_batch(matrix, rhs)
         broken = bad | ~np.all(np.isfinite(x_new), axis=1)
         x_new = np.where(broken[:, None], x, x_new)
+        x_new, damped = _damp(x, x_new, node_count, span)
+        limited = limited | damped
         step = np.abs(x_new - x)
         allowed = options.relative_tolerance * np.maximum(np.abs(x_new), np.abs(x)) + absolute
         settled = np.all(step <= allowed, axis=1) & ~limited & ~broken
