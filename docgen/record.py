@@ -18,7 +18,7 @@ from docgen.design import Design, ModelDef, frozen_map
 from docgen.diagnostics import Collector, Diagnostic, DocgenError, did_you_mean
 from docgen.kinds import KINDS
 from docgen.reader import read_file, read_text
-from docgen.reader.circuit import article
+from docgen.reader.common import article
 
 BUILTIN = "<built-in>"
 

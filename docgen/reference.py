@@ -15,7 +15,7 @@ from pathlib import Path
 
 from docgen.kinds import KINDS
 from docgen.params import MODEL_KINDS, ParamSpec
-from docgen.reader.circuit import article
+from docgen.reader.common import article
 from docgen.units import format_eng
 
 _SECTION = re.compile(

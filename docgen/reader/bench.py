@@ -13,7 +13,7 @@ from typing import Any
 
 from docgen.design import Bench, frozen_map
 from docgen.diagnostics import Collector, Span, did_you_mean
-from docgen.reader.circuit import report_quantity
+from docgen.reader.common import report_quantity
 from docgen.reader.lexer import SourceLine
 from docgen.units import QuantityError, parse_percent, parse_temperature, parse_value
 

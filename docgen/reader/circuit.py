@@ -3,81 +3,24 @@
 from __future__ import annotations
 
 import math
-import re
-from collections.abc import Collection
 
 from docgen.design import Part, frozen_map
 from docgen.diagnostics import Collector, Span, did_you_mean
-from docgen.kinds import KINDS, KindSpec, connects_by_position
-from docgen.reader.lexer import Field, SourceLine, Word, group_fields, read_lines
+from docgen.kinds import KINDS
+from docgen.reader.common import MODEL_NAME, PART_NAME, article, check_head
+from docgen.reader.connections import read_connections
+from docgen.reader.lexer import Field, SourceLine, group_fields, read_lines
+from docgen.reader.part import PartBuilder
 from docgen.units import QuantityError, parse_percent, parse_ppm, parse_value
 
-PART_NAME = re.compile(r"^[A-Za-z][A-Za-z0-9_]*$")
-NET_NAME = re.compile(r"^[A-Za-z0-9_][A-Za-z0-9_.+\-]*$")
-MODEL_NAME = re.compile(r"^[A-Za-z][A-Za-z0-9_.+\-]*$")
 _POSITIVE_KINDS = {"resistor", "capacitor", "inductor"}
 _AMPLITUDE = {"rms": math.sqrt(2.0), "pp": 0.5}
-
-
-def article(kind: str) -> str:
-    """``kind`` with its indefinite article ("an npn", "a resistor")."""
-    return f"{'an' if kind[0] in 'aeioun' else 'a'} {kind}"
-
-
-def report_quantity(collector: Collector, span: Span, error: QuantityError) -> None:
-    """Record a :class:`QuantityError` found in the text at ``span``."""
-    col = span.col + error.offset
-    width = error.width or span.width
-    if col + width > span.col + span.width:  # keep the caret inside the field
-        col, width = span.col, span.width
-    collector.add(Span(span.line, col, width), error.message, hint=error.hint)
 
 
 def read_circuit(lines: list[SourceLine], collector: Collector) -> list[Part]:
     """Every part line of a circuit block (errors go to ``collector``)."""
     return read_lines(lines, lambda line: _read_part(line, collector))
 
-
-def check_head(line: int, name: Word, kind: Word, collector: Collector, pattern: re.Pattern,
-               kinds: Collection[str], noun: str) -> bool | None:
-    """Check a line's NAME and KIND words: None if the kind is unknown, else whether the
-    name is well formed (both problems are reported)."""
-    ok = bool(pattern.match(name.text))
-    if not ok:
-        collector.add(name.span(line), f"'{name.text}' is not a {noun} name",
-                      hint="a name starts with a letter")
-    if kind.text not in kinds:
-        collector.add(kind.span(line), f"unknown {noun} kind '{kind.text}'",
-                      hint=did_you_mean(kind.text, kinds) or f"one of {', '.join(kinds)}")
-        return None
-    return ok
-
-
-class _PartBuilder:
-    """The fields of one part while its line is read."""
-
-    def __init__(self, line: SourceLine, collector: Collector, name: Word, kind: str):
-        self.line = line
-        self.collector = collector
-        self.name = name
-        self.kind = kind
-        self.spec: KindSpec = KINDS[kind]
-        self.value: float | None = None
-        self.value_text: str | None = None
-        self.model: str | None = None
-        self.tolerance: float | None = None
-        self.rating: float | None = None
-        self.params: dict[str, float] = {}
-        self.spans: dict[str, Span] = {}
-        self.ok = True
-
-    def error(self, span: Span, message: str, hint: str | None = None) -> None:
-        self.ok = False
-        self.collector.add(span, message, hint=hint)
-
-    def quantity_error(self, span: Span, error: QuantityError) -> None:
-        self.ok = False
-        report_quantity(self.collector, span, error)
 
 
 def _read_part(line: SourceLine, collector: Collector) -> Part | None:
@@ -96,10 +39,10 @@ def _read_part(line: SourceLine, collector: Collector) -> Part | None:
     ok = check_head(line.number, name, kind_word, collector, PART_NAME, KINDS, "part")
     if ok is None:
         return None
-    builder = _PartBuilder(line, collector, name, kind_word.text)
+    builder = PartBuilder(line, collector, name, kind_word.text)
     builder.spans["kind"] = Span(line.number, kind_word.col, len(kind_word.text))
     _read_fields(builder, group_fields(words[2:]))
-    terminals = _read_connections(builder, line.words(colon + 1), line.span_at(colon))
+    terminals = read_connections(builder, line.words(colon + 1), line.span_at(colon))
     if not (ok and builder.ok) or terminals is None:
         return None
     return Part(name.text, builder.kind, builder.value, builder.value_text, builder.model,
@@ -107,7 +50,7 @@ def _read_part(line: SourceLine, collector: Collector) -> Part | None:
                 Span(line.number, name.col, len(name.text)), frozen_map(builder.spans))
 
 
-def _read_fields(builder: _PartBuilder, fields: list[Field]) -> None:
+def _read_fields(builder: PartBuilder, fields: list[Field]) -> None:
     positional = [f for f in fields if "=" not in f.words[0].text]
     for field in fields:
         if "=" in field.words[0].text:
@@ -118,7 +61,7 @@ def _read_fields(builder: _PartBuilder, fields: list[Field]) -> None:
         _read_values(builder, positional)
 
 
-def _read_model(builder: _PartBuilder, fields: list[Field]) -> None:
+def _read_model(builder: PartBuilder, fields: list[Field]) -> None:
     line = builder.line.number
     kind = builder.kind
     if not fields:
@@ -138,7 +81,7 @@ def _read_model(builder: _PartBuilder, fields: list[Field]) -> None:
                       hint=f"{article(kind)} takes only a model name before the ':'")
 
 
-def _read_values(builder: _PartBuilder, fields: list[Field]) -> None:
+def _read_values(builder: PartBuilder, fields: list[Field]) -> None:
     line = builder.line.number
     if not fields:
         builder.error(builder.spans["kind"], f"{article(builder.kind)} part needs a value",
@@ -165,7 +108,7 @@ def _example(kind: str) -> str:
     return {"Ω": "4k7", "F": "100n", "H": "10m", "A": "1 mA"}.get(unit or "", f"1 {unit}")
 
 
-def _read_main_value(builder: _PartBuilder, field: Field) -> None:
+def _read_main_value(builder: PartBuilder, field: Field) -> None:
     line = builder.line.number
     span = field.span(line)
     words = [w.text for w in field.words]
@@ -190,7 +133,7 @@ def _read_main_value(builder: _PartBuilder, field: Field) -> None:
     builder.value_text = field.text
 
 
-def _read_frequency(builder: _PartBuilder, field: Field) -> None:
+def _read_frequency(builder: PartBuilder, field: Field) -> None:
     span = field.span(builder.line.number)
     try:
         frequency = parse_value(field.text, "Hz", "a signal's frequency").value
@@ -203,7 +146,7 @@ def _read_frequency(builder: _PartBuilder, field: Field) -> None:
     builder.spans["frequency"] = span
 
 
-def _read_tolerance(builder: _PartBuilder, field: Field) -> None:
+def _read_tolerance(builder: PartBuilder, field: Field) -> None:
     span = field.span(builder.line.number)
     if builder.tolerance is not None:
         builder.error(span, "a second tolerance", hint="write one tolerance per part")
@@ -219,7 +162,7 @@ def _read_tolerance(builder: _PartBuilder, field: Field) -> None:
     builder.spans["tolerance"] = span
 
 
-def _read_rating(builder: _PartBuilder, field: Field) -> None:
+def _read_rating(builder: PartBuilder, field: Field) -> None:
     span = field.span(builder.line.number)
     unit = builder.spec.rating_unit
     if unit is None:
@@ -250,7 +193,7 @@ def _rating_hint(kind: str) -> str | None:
     return "settings are written as key=value"
 
 
-def _read_param(builder: _PartBuilder, field: Field) -> None:
+def _read_param(builder: PartBuilder, field: Field) -> None:
     line = builder.line.number
     first = field.words[0]
     key, _, _ = first.text.partition("=")
@@ -274,7 +217,7 @@ def _read_param(builder: _PartBuilder, field: Field) -> None:
         builder.spans[key] = key_span
 
 
-def _param_value(builder: _PartBuilder, key: str, unit: str, text: str,
+def _param_value(builder: PartBuilder, key: str, unit: str, text: str,
                  span: Span) -> float | None:
     if unit == "flag":
         if text in ("yes", "no"):
@@ -292,86 +235,3 @@ def _param_value(builder: _PartBuilder, key: str, unit: str, text: str,
         builder.error(span, f"'{key}' cannot be negative")
         return None
     return value
-
-
-def _read_connections(builder: _PartBuilder, words: list[Word],
-                      colon: Span) -> tuple[tuple[str, str], ...] | None:
-    terminals = builder.spec.terminals
-    if connects_by_position(builder.kind):
-        return _positional(builder, words, colon, terminals)
-    return _named(builder, words, colon, terminals)
-
-
-def _net_ok(builder: _PartBuilder, net: str, span: Span) -> bool:
-    if NET_NAME.match(net):
-        return True
-    builder.error(span, f"'{net}' is not a net name",
-                  hint="a net name is a word of letters, digits, '_', '.', '+' or '-'")
-    return False
-
-
-def _positional(builder: _PartBuilder, words: list[Word], colon: Span,
-                terminals: tuple[str, ...]) -> tuple[tuple[str, str], ...] | None:
-    line = builder.line.number
-    named = [w for w in words if "=" in w.text]
-    if named:
-        builder.error(Span(line, named[0].col, len(named[0].text)),
-                      f"{article(builder.kind)} connects by position: "
-                      f"list its {len(terminals)} nets",
-                      hint=f"e.g. '{builder.name.text} ... : a b'")
-        return None
-    if len(words) != len(terminals):
-        where = (Span(line, words[len(terminals)].col, len(words[len(terminals)].text))
-                 if len(words) > len(terminals) else colon)
-        builder.error(where, f"{article(builder.kind)} connects to {len(terminals)} nets, "
-                      f"not {len(words)}", hint=_order_hint(builder.kind))
-        return None
-    pairs = []
-    for terminal, word in zip(terminals, words, strict=True):
-        span = Span(line, word.col, len(word.text))
-        if not _net_ok(builder, word.text, span):
-            return None
-        builder.spans[f"net:{terminal}"] = span
-        pairs.append((terminal, word.text))
-    return tuple(pairs)
-
-
-def _order_hint(kind: str) -> str:
-    return {"diode": "anode net first, then cathode net",
-            "supply": "positive net first, then negative net",
-            "signal": "positive net first, then negative net",
-            "current": "the current flows from the first net to the second"}.get(
-        kind, "the two nets the part sits between")
-
-
-def _named(builder: _PartBuilder, words: list[Word], colon: Span,
-           terminals: tuple[str, ...]) -> tuple[tuple[str, str], ...] | None:
-    line = builder.line.number
-    example = " ".join(f"{t}=..." for t in terminals)
-    found: dict[str, str] = {}
-    for word in words:
-        span = Span(line, word.col, len(word.text))
-        terminal, eq, net = word.text.partition("=")
-        if not eq:
-            builder.error(span, f"{article(builder.kind)} names each terminal: '{example}'")
-            continue
-        if terminal not in terminals:
-            builder.error(Span(line, word.col, max(1, len(terminal))),
-                          f"{article(builder.kind)} has no terminal '{terminal}'",
-                          hint=did_you_mean(terminal, terminals, cutoff=0.3)
-                          or f"its terminals are {', '.join(terminals)}")
-            continue
-        if terminal in found:
-            builder.error(span, f"terminal '{terminal}' is connected twice")
-            continue
-        net_span = Span(line, word.col + len(terminal) + 1, max(1, len(net)))
-        if _net_ok(builder, net, net_span):
-            found[terminal] = net
-            builder.spans[f"net:{terminal}"] = net_span
-    missing = [t for t in terminals if t not in found]
-    if missing and builder.ok:
-        builder.error(colon, f"{builder.name.text} leaves terminal(s) {', '.join(missing)} "
-                      "unconnected", hint=f"{article(builder.kind)} is connected as '{example}'")
-    if not builder.ok:
-        return None
-    return tuple((t, found[t]) for t in terminals)

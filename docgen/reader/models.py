@@ -6,7 +6,7 @@ from __future__ import annotations
 from docgen.design import ModelDef, ModelParam, frozen_map
 from docgen.diagnostics import Collector, Span, did_you_mean
 from docgen.params import MODEL_KINDS, ParamSpec
-from docgen.reader.circuit import MODEL_NAME, check_head, report_quantity
+from docgen.reader.common import MODEL_NAME, check_head, report_quantity
 from docgen.reader.lexer import SourceLine, Word, read_lines
 from docgen.units import QuantityError, parse_value
 

@@ -13,7 +13,7 @@ import re
 
 from docgen.design import Limit, Requirement
 from docgen.diagnostics import Collector, did_you_mean
-from docgen.reader.circuit import report_quantity
+from docgen.reader.common import report_quantity
 from docgen.reader.lexer import SourceLine, read_lines
 from docgen.units import QuantityError, parse_quantity
 
