@@ -93,6 +93,12 @@ def _script(read: Callable[[str], str]) -> list[Step]:
                 "R1      resistor   100k 1% 0.125 W             : vcc b1"),
                ("R2      resistor   47k 1% 0.125 W              : b1 gnd",
                 "R2      resistor   18k 1% 0.125 W              : b1 gnd"))
+    # first approvals, before the chain's noise budget added a requirement to three stages
+    buffer_09 = with_header(_without_line(buffer, "input noise 20 Hz .. 20 kHz :"),
+                            approved="2026-09-14")
+    preamp_09 = with_header(_without_line(preamp, "input noise 20 Hz .. 20 kHz :"),
+                            approved="2026-09-21")
+    mic_10 = with_header(_without_line(mic, "signal-to-noise ratio  :"), approved="2026-10-02")
     v1_live = with_header(v1, status="review", replaced_by=None,
                           summary="Single emitter follower with a 180 Ω emitter resistor "
                                   "driving the conductivity cell.")
@@ -101,40 +107,42 @@ def _script(read: Callable[[str], str]) -> list[Step]:
              {"library/stock-parts.md": lambda: read("library/stock-parts.md"),
               "conventions.md": lambda: read("conventions.md")}),
         Step("2026-08-10T14:05:00+01:00", "Hedda", "Hydrophone buffer: first cut",
-             {"hydrophone-buffer.md": lambda: with_header(replaced(buffer, co_1u), **draft)}),
+             {"hydrophone-buffer.md": lambda: with_header(replaced(buffer_09, co_1u), **draft)}),
         Step("2026-08-17T10:30:00+01:00", "Hedda", "Hydrophone preamp: first cut",
-             {"ce-preamp.md": lambda: with_header(replaced(preamp, ce_all, re1_470), **draft)}),
+             {"ce-preamp.md": lambda: with_header(replaced(preamp_09, ce_all, re1_470),
+                                                  **draft)}),
         Step("2026-08-19T16:45:00+01:00", "Hedda",
              "Preamp: bypass only RE2 (CE was across the whole emitter, so re alone set the gain)",
-             {"ce-preamp.md": lambda: with_header(replaced(preamp, re1_470), **draft)}),
+             {"ce-preamp.md": lambda: with_header(replaced(preamp_09, re1_470), **draft)}),
         Step("2026-08-24T11:20:00+01:00", "Hedda", "Preamp: RE1 470 → 390 Ω for the 20 dB budget",
-             {"ce-preamp.md": lambda: with_header(preamp, **draft)}),
+             {"ce-preamp.md": lambda: with_header(preamp_09, **draft)}),
         Step("2026-08-31T09:00:00+01:00", "Hedda",
              "Buffer: CO 1 → 2.2 µF so RG alone sets the low corner; ready for review",
-             {"hydrophone-buffer.md": lambda: with_header(buffer, **review)}),
+             {"hydrophone-buffer.md": lambda: with_header(buffer_09, **review)}),
         Step("2026-09-07T13:10:00+01:00", "Hedda",
              "Rename ce-preamp.md to hydrophone-preamp.md; ready for review",
-             {"hydrophone-preamp.md": lambda: with_header(preamp, **review)},
+             {"hydrophone-preamp.md": lambda: with_header(preamp_09, **review)},
              renames=(("ce-preamp.md", "hydrophone-preamp.md"),)),
         Step("2026-09-10T15:20:00+01:00", "Tomasz", "Hydrophone line driver (emitter follower)",
              {"preamp-follower.md": lambda: with_header(follower, **review)}),
         Step("2026-09-14T17:30:00+01:00", "Ines", "Approve the hydrophone buffer",
-             {"hydrophone-buffer.md": lambda: buffer}),
+             {"hydrophone-buffer.md": lambda: buffer_09}),
         Step("2026-09-15T10:00:00+01:00", "Rafael", "Conductivity-cell driver: class-A follower",
              {"cell-driver-v1.md": lambda: v1_live}),
         Step("2026-09-21T16:00:00+01:00", "Ines", "Approve the hydrophone preamp and line driver",
-             {"hydrophone-preamp.md": lambda: preamp, "preamp-follower.md": lambda: follower}),
+             {"hydrophone-preamp.md": lambda: preamp_09,
+              "preamp-follower.md": lambda: follower}),
         Step("2026-10-01T11:00:00+01:00", "Tomasz", "Mic preamp: feedback pair, first cut",
-             {"mic-preamp.md": lambda: with_header(replaced(mic, *divider), **draft)}),
+             {"mic-preamp.md": lambda: with_header(replaced(mic_10, *divider), **draft)}),
         Step("2026-10-02T09:40:00+01:00", "Tomasz",
              "Mic preamp: divider 270k/47k so the capsule is not loaded; approved",
-             {"mic-preamp.md": lambda: mic}),
+             {"mic-preamp.md": lambda: mic_10}),
         Step("2026-10-20T15:00:00+01:00", "Rafael",
              "Push-pull cell driver replaces the class-A follower (RE ran above half rating)",
              {"cell-driver.md": lambda: driver, "cell-driver-v1.md": lambda: v1}),
         Step("2026-11-04T10:15:00+00:00", "Hedda",
              "Preamp: CI 4.7 → 2.2 µF film capacitor to fit the new footprint",
-             {"hydrophone-preamp.md": lambda: replaced(preamp, ci_2u2)}),
+             {"hydrophone-preamp.md": lambda: replaced(preamp_09, ci_2u2)}),
         Step("2026-11-12T14:30:00+00:00", "Rafael", "ADC driver for the 5 V board, for review",
              {"adc-driver.md": lambda: read("adc-driver.md")}),
         Step("2026-11-18T09:30:00+00:00", "Ines", "Geophone differential amplifier, for review",
@@ -144,7 +152,20 @@ def _script(read: Callable[[str], str]) -> list[Step]:
              {"hydrophone-preamp-lowpower.md": lambda: read("hydrophone-preamp-lowpower.md")}),
         Step("2026-11-20T11:00:00+00:00", "Ines", "Signal-chain overview page",
              {"signal-chain.md": lambda: read("signal-chain.md")}),
+        Step("2026-11-24T15:45:00+00:00", "Ines",
+             "Noise budget: noise requirements for the buffer and the mic preamp; re-approved",
+             {"hydrophone-buffer.md": lambda: buffer, "mic-preamp.md": lambda: mic}),
     ]
+
+
+def _without_line(text: str, start: str) -> str:
+    """``text`` without its one line starting with ``start``."""
+    lines = text.split("\n")
+    found = [i for i, line in enumerate(lines) if line.startswith(start)]
+    if len(found) != 1:
+        raise DemoScriptError(f"expected exactly one line starting {start!r}")
+    del lines[found[0]]
+    return "\n".join(lines)
 
 
 def _environment(step: Step) -> dict[str, str]:
@@ -168,7 +189,8 @@ def make_demo_repo(path: str | Path = DEFAULT_PATH, source: str | Path = DEFAULT
     """Create a fresh git repository at ``path`` replaying the demo history; return its path.
 
     The repository has one branch, ``main``, whose ``designs/`` folder ends as ``source``
-    except for one change after approval (the preamp's input capacitor).  An existing folder
+    except for the hydrophone preamp, which is changed after its first approval (its input
+    capacitor) and never re-approved.  An existing folder
     at ``path`` is replaced, but only if it is empty or a repository this function made (it
     has ``.demo-repo``).
     """

@@ -41,7 +41,7 @@ def test_history_has_tweaks_a_rewiring_a_rename_approvals_and_several_authors(de
     statuses = [read_text(git(demo, "show", f"{sha}:designs/hydrophone-buffer.md"), "b").header
                 .status for sha in git(demo, "log", "--format=%H", "--",
                                        "designs/hydrophone-buffer.md").split()]
-    assert statuses[::-1] == ["draft", "review", "approved"]
+    assert statuses[::-1] == ["draft", "review", "approved", "approved"]  # and re-approved
 
 
 def test_every_revision_of_every_page_reads_without_errors(demo: Path) -> None:
@@ -55,6 +55,15 @@ def test_an_approved_design_changed_after_its_approval(demo: Path) -> None:
     header = read_text((demo / path).read_text(encoding="utf-8"), path).header
     last_change = git(demo, "log", "-1", "--format=%aI", "--", path)
     assert header.status == "approved" and last_change[:10] > header.approved
+
+
+def test_only_that_design_is_flagged_changed_since_approval(demo: Path) -> None:
+    from docgen.history.approval import changed_since_approval
+
+    designs = demo / "designs"
+    flagged = {p.name: changed_since_approval(demo, p, designs) for p in designs.glob("*.md")}
+    assert [name for name, flag in flagged.items() if flag] == ["hydrophone-preamp.md"]
+    assert flagged["hydrophone-preamp.md"]["sections"] == ["circuit"]
 
 
 def test_the_final_tree_matches_the_bundled_designs_but_for_that_change(demo: Path) -> None:
