@@ -96,7 +96,8 @@ FORMS: tuple[Form, ...] = (
        "input-referred rms noise over a band"),
     _F("input noise", "input_noise", "noise", "V", "input-referred rms noise over the bench "
        "noise band"),
-    _F("signal-to-noise ratio", "snr", "noise", "dB", "bench signal (rms) over the noise in the band, both at the output"),
+    _F("signal-to-noise ratio", "snr", "noise", "dB", "bench signal (rms) over the noise in "
+       "the band, both at the output"),
     _F("noise figure", "noise_figure", "noise", "dB", "noise figure for the source resistance "
        "(T0 = 290 K)"),
     _F("THD at {amplitude}", "thd_at", "transient", "%", "total harmonic distortion at an input "
