@@ -151,3 +151,17 @@ Q1  npn       fast               : c=c b=b e=gnd
     miller = 1 / (TWO_PI * r_source * c_in)
     assert ac["f_high_hz"] == pytest.approx(miller, rel=0.10)
     assert ac["f_high_hz"] < miller  # the neglected time constants only lower the corner
+
+
+def test_pnp_mirror_of_a_stage_has_the_same_response():
+    # Ebers–Moll is odd-symmetric under a change of polarity: the pnp stage on a negative supply
+    # with the same model values has the npn stage's small-signal response and noise.
+    stage = DEGENERATED.format(**DIVIDER_STAGE).replace("CI  capacitor 1m", "CI  capacitor 1u")
+    extra = " transition_frequency=300M base_collector_capacitance=3p"
+    npn = results(stage, models=PLAIN + extra, bench=BENCH)
+    mirrored = (stage.replace("15 V       : vcc gnd", "15 V       : gnd vcc")
+                .replace("npn       plain", "pnp       plain"))
+    pnp = results(mirrored, models=PLAIN.replace(" npn ", " pnp ") + extra, bench=BENCH)
+    for key in ("midband_gain_db", "f_low_hz", "f_high_hz", "zin_ohm", "zout_ohm"):
+        assert pnp["ac"][key] == pytest.approx(npn["ac"][key], rel=1e-6), key
+    assert pnp["noise"]["input_rms_v"] == pytest.approx(npn["noise"]["input_rms_v"], rel=1e-6)
