@@ -166,3 +166,51 @@ def test_hazardous_supply_is_warned_prominently(tmp_path: Path) -> None:
     assert "HAZARDOUS VOLTAGE" in page and "Hazardous voltage:" in page
     index = (site / "index.html").read_text()
     assert "caution caution-danger" in index and 'href="hv.html"' in index
+
+
+GATED = """---
+title: Gate fixture
+status: {status}
+owner: Test Owner
+approved: 2026-02-01
+---
+
+```circuit
+VB  supply    9 V                : vcc gnd
+R1  resistor  10k 1% 0.25 W      : vcc mid
+R2  resistor  10k 1% 0.25 W      : mid gnd
+```
+
+```require
+voltage at mid : 6 V .. 7 V
+```
+"""
+
+
+@pytest.mark.parametrize("status, code", [("draft", 0), ("review", 1), ("approved", 1),
+                                          ("retired", 0)])
+def test_exit_code_one_for_failing_review_or_approved_design(tmp_path: Path, status: str,
+                                                              code: int) -> None:
+    """An equal divider from 9 V gives 4.5 V (Ohm's law), outside 6..7 V: the requirement
+    fails, which only gates designs in review or approved (DEVELOPERS.md exit codes)."""
+    designs = tmp_path / "designs"
+    designs.mkdir()
+    (designs / "gate.md").write_text(GATED.format(status=status))
+    report = build(designs, tmp_path / "site", cache_dir=tmp_path / "cache")
+    assert report.exit_code == code
+    assert report.failing == (["gate.md"] if code else [])
+    assert "FAILS" in (tmp_path / "site" / "gate.html").read_text()
+
+
+@pytest.mark.slow
+def test_demo_site_links_resolve_and_pages_parse(tmp_path: Path) -> None:
+    """The real designs/ folder: every link resolves and every page is valid WHATWG HTML."""
+    from site_helpers import REPO
+
+    report = build(REPO / "designs", tmp_path / "site", jobs=2)
+    assert report.exit_code in (0, 1), [d.render() for d in report.diagnostics]
+    site = tmp_path / "site"
+    assert broken_links(site) == []
+    for page in html_pages(site):
+        parse_strict(page.read_bytes())
+    assert len(list(site.glob("*.files/results.json"))) >= 8

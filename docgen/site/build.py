@@ -13,7 +13,7 @@ import os
 import sys
 from collections.abc import Iterable
 from concurrent.futures import ProcessPoolExecutor
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from pathlib import Path
 from typing import Any
 
@@ -92,9 +92,7 @@ def solve_all(view: RecordView, wanted: list[str], options: BuildOptions,
               report: BuildReport) -> dict[str, dict[str, Any]]:
     """Bundles for the designs in ``wanted``: from the cache, or computed (in parallel)."""
     cache_root = options.cache_dir
-    if cache_root is None:
-        cache_root = default_cache_dir(options.designs_dir)
-    cache = BundleCache(None if cache_root is False else Path(cache_root))  # type: ignore[arg-type]
+    cache = BundleCache(None if cache_root in (None, False) else Path(cache_root))  # type: ignore[arg-type]
     # The path is part of the key: results and diagnostics name the file as it was given.
     keys = {rel: cache_key(view.entries[rel].source, view.entries[rel].library_bytes,
                            extra=view.entries[rel].path) for rel in wanted}
@@ -166,6 +164,8 @@ def build_site(options: BuildOptions) -> BuildReport:
     """Build the site for ``options``; the old site stays in place until the new one is whole."""
     from docgen.site.publish import write_site
 
+    if options.cache_dir is None:
+        options = replace(options, cache_dir=default_cache_dir(options.designs_dir))
     report = BuildReport()
     view = read_record(Path(options.designs_dir))
     report.diagnostics.extend(view.diagnostics)

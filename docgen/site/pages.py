@@ -108,7 +108,9 @@ def _met_text(design: Design, results: dict[str, Any] | None) -> str:
     if results is None or not isinstance(results.get("checks"), list):
         return f"{total} written, not checked"
     text = f"{met} of {total} met"
-    return text + (f", {failing} failing" if failing else "")
+    unchecked = total - met - failing
+    return (text + (f", {failing} failing" if failing else "")
+            + (f", {unchecked} not computed" if unchecked else ""))
 
 
 def _downloads(entry: PageEntry, page: str, bundle: dict[str, Any]) -> list[dict[str, str]]:
