@@ -224,6 +224,11 @@ def headline(results: dict[str, Any] | None) -> list[list[str]]:
     return out
 
 
+def _short_stamp(stamp: str) -> str:
+    """The date of a "date, commit ..." stamp, marked when the file changed since."""
+    return stamp.split(",")[0] + (" (edited since)" if "uncommitted" in stamp else "")
+
+
 def index_row(entry: PageEntry, bundle: dict[str, Any], page: str, site: SiteContext,
               flags: list[str]) -> dict[str, Any]:
     """One row of the index table."""
@@ -237,7 +242,7 @@ def index_row(entry: PageEntry, bundle: dict[str, Any], page: str, site: SiteCon
         "href": page, "title": design.header.title or entry.source_rel,
         "summary": design.header.summary, "status": design.header.status,
         "approved": design.header.approved, "owner": design.header.owner,
-        "last_change": (site.last_change.get(entry.source_rel) or "").split(",")[0],
+        "last_change": _short_stamp(site.last_change.get(entry.source_rel) or ""),
         "headline": headline(results), "met": _met_text(design, results),
         "met_class": "met-some" if failing else ("met-all" if total and met == total else ""),
         "cautions": f"{len(counted)} caution(s)" if counted else "",

@@ -24,13 +24,19 @@ ASSETS = ("docgen.css", "favicon.svg", "filter.js", "live-reload.js")
 STATUS_ORDER = ("draft", "review", "approved", "retired")
 
 
-def last_changes(root: Path) -> dict[str, str]:
-    """``source_rel`` -> "date, commit" of the last commit that touched it (git), or nothing."""
+def _git(root: Path, *args: str) -> str | None:
     try:
-        out = subprocess.run(
-            ["git", "log", "--format=%x00%cs %h", "--name-only", "--relative", "--", "."],
-            cwd=root, capture_output=True, text=True, check=True, timeout=60).stdout
+        return subprocess.run(["git", *args], cwd=root, capture_output=True, text=True,
+                              check=True, timeout=60).stdout
     except (OSError, subprocess.SubprocessError):
+        return None
+
+
+def last_changes(root: Path) -> dict[str, str]:
+    """``source_rel`` -> "date, commit" of the last commit that touched it (from git), with a
+    note when the working copy differs; nothing outside a git checkout."""
+    out = _git(root, "log", "--format=%x00%cs %h", "--name-only", "--relative", "--", ".")
+    if out is None:
         return {}
     found: dict[str, str] = {}
     for block in out.split("\0")[1:]:
@@ -39,6 +45,10 @@ def last_changes(root: Path) -> dict[str, str]:
         for name in lines[1:]:
             if name.strip():
                 found.setdefault(name.strip(), stamp.replace(" ", ", commit "))
+    changed = _git(root, "ls-files", "--modified", "--others", "--exclude-standard") or ""
+    for name in changed.splitlines():
+        found[name] = (found[name] + " (uncommitted changes since)" if name in found
+                       else "not committed yet")
     return found
 
 
