@@ -1,10 +1,10 @@
 """Reading a frequency response: midband, −3 dB corners, unity-gain frequency, anchored phase.
 
 Pure numpy/scipy functions over a log-spaced sweep; they know nothing about circuits.  Each
-corner is first bracketed between two sweep points and then found by root-finding
-(``scipy.optimize.brentq`` in log-frequency) on a callable that re-evaluates the response at any
-frequency, so the answer does not depend on the sweep density.  Without a callable the crossing is
-interpolated linearly in (log f, dB).
+corner is first bracketed between two sweep points and then narrowed on successively finer grids
+(in log-frequency) of a callable that re-evaluates the response at any frequency, so the answer
+does not depend on the sweep density.  Without a callable the crossing is interpolated linearly
+in (log f, dB) between the sweep points.
 
 Conventions (DEVELOPERS.md "Shared decisions"):
 
@@ -44,6 +44,13 @@ UNITY_MARGIN_DB = 1e-6
 
 #: the reason given for every figure of a response that is zero over the whole sweep.
 NO_TRANSFER = "no signal reaches the output: the gain is zero over the whole sweep"
+
+#: grid points per refinement round of a crossing or a peak, ...
+REFINE_POINTS = 17
+#: ... the most rounds, ...
+REFINE_ROUNDS = 12
+#: ... and the bracket width (decades) at which refinement stops (≈ 2e-10 relative in f).
+REFINE_WIDTH = 1e-10
 
 GainFunction = Callable[[np.ndarray], np.ndarray]
 
@@ -90,8 +97,8 @@ def find_midband(
 ) -> Midband:
     """The largest gain of the sweep, whether it is flat, and a note when it is not.
 
-    With ``evaluate_db`` an interior maximum is refined between its neighbours (bounded Brent
-    search in log-frequency), so a sharp resonance is not under-read by a coarse sweep.
+    With ``evaluate_db`` an interior maximum is refined between its neighbours (finer grids in
+    log-frequency), so a sharp resonance is not under-read by a coarse sweep.
     """
     index = int(np.argmax(gain_db))
     peak, peak_freq = float(gain_db[index]), float(freq[index])
@@ -119,21 +126,30 @@ def find_midband(
     return Midband(index, peak, peak_freq, bool(flat), at_edge, note)
 
 
+def _grid(log_a: float, log_b: float) -> np.ndarray:
+    return np.linspace(log_a, log_b, REFINE_POINTS)
+
+
 def _refine_peak(
     f_below: float, f_above: float, evaluate_db: GainFunction, f_sweep: float, g_sweep: float
 ) -> tuple[float, float]:
-    """The maximum of the gain between two frequencies (never below the sweep's own value)."""
-    from scipy.optimize import minimize_scalar
+    """The maximum of the gain between two frequencies (never below the sweep's own value).
 
-    found = minimize_scalar(
-        lambda log_f: -float(evaluate_db(np.array([10.0**log_f]))[0]),
-        bounds=(math.log10(f_below), math.log10(f_above)),
-        method="bounded",
-        options={"xatol": 1e-10},
-    )
-    if -found.fun > g_sweep:
-        return 10.0 ** float(found.x), float(-found.fun)
-    return f_sweep, g_sweep
+    Each round evaluates a grid across the bracket in one batched call and keeps the two grid
+    steps around its best point, until the bracket is narrower than :data:`REFINE_WIDTH`.
+    """
+    best_f, best_g = f_sweep, g_sweep
+    log_a, log_b = math.log10(f_below), math.log10(f_above)
+    for _ in range(REFINE_ROUNDS):
+        grid = _grid(log_a, log_b)
+        gains = np.asarray(evaluate_db(10.0**grid), dtype=float)
+        k = int(np.argmax(gains))
+        if gains[k] > best_g:
+            best_f, best_g = float(10.0 ** grid[k]), float(gains[k])
+        log_a, log_b = grid[max(k - 1, 0)], grid[min(k + 1, REFINE_POINTS - 1)]
+        if log_b - log_a < REFINE_WIDTH:
+            break
+    return best_f, best_g
 
 
 def crossing(
@@ -147,21 +163,28 @@ def crossing(
     """The frequency between two sweep points where the gain equals ``level_db``.
 
     The two points must bracket the level.  With ``evaluate_db`` (gain in dB at an array of
-    frequencies) the crossing is found by Brent's method in log-frequency; without it, by linear
-    interpolation in (log f, dB).
+    frequencies) the bracket is narrowed on successively finer log-spaced grids (one batched
+    evaluation per round, a factor 16 narrower each time) to :data:`REFINE_WIDTH`; the crossing
+    is then interpolated linearly in (log f, dB) inside the final bracket.
     """
     log_a, log_b = math.log10(f_below), math.log10(f_above)
-    if evaluate_db is None or not np.isfinite([gain_below_db, gain_above_db]).all():
-        fraction = (level_db - gain_below_db) / (gain_above_db - gain_below_db)
-        if not math.isfinite(fraction):
-            fraction = 0.5
-        return 10.0 ** (log_a + fraction * (log_b - log_a))
-    from scipy.optimize import brentq
-
-    def offset(log_f: float) -> float:
-        return float(evaluate_db(np.array([10.0**log_f]))[0]) - level_db
-
-    return 10.0 ** brentq(offset, log_a, log_b, xtol=1e-12, rtol=1e-12)
+    gain_a, gain_b = gain_below_db, gain_above_db
+    if evaluate_db is not None:
+        for _ in range(REFINE_ROUNDS):
+            if log_b - log_a < REFINE_WIDTH:
+                break
+            grid = _grid(log_a, log_b)
+            gains = np.asarray(evaluate_db(10.0**grid), dtype=float)
+            side = gains >= level_db
+            flips = np.flatnonzero(side[1:] != side[:-1])
+            if not len(flips):  # the level is not crossed on this grid: keep what we have
+                break
+            k = int(flips[0])
+            log_a, log_b, gain_a, gain_b = grid[k], grid[k + 1], gains[k], gains[k + 1]
+    fraction = (level_db - gain_a) / (gain_b - gain_a)
+    if not math.isfinite(fraction):
+        fraction = 0.5
+    return 10.0 ** (log_a + min(max(fraction, 0.0), 1.0) * (log_b - log_a))
 
 
 def _walk(gain_db: np.ndarray, start: int, step: int, level_db: float) -> int | None:
