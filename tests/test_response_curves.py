@@ -56,7 +56,7 @@ def test_first_order_low_pass_corner(fc, refine):
     assert why is None
     m_squared = 1.0 / (1.0 + (10.0 / fc) ** 2)
     expected = fc * math.sqrt(2.0 / m_squared - 1.0)
-    # Root-finding gives the corner to solver precision; interpolation to well under 0.1 %.
+    # Grid refinement gives the corner to solver precision; interpolation to well under 0.1 %.
     assert f_high == pytest.approx(expected, rel=1e-9 if refine else 1e-3)
     f_low, why_low = find_corner(freq, gain, mid, "low", evaluator(b, a), dc_gain_db=0.0)
     assert f_low is None and "direct-coupled" in why_low
