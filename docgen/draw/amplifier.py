@@ -127,6 +127,8 @@ class _Builder:
         if part.kind in classify.ACTIVE:
             return
         for near, far in (part.nets, part.nets[::-1]):
+            if far in (self.design.bench.output, classify.input_net(self.design)):
+                continue  # the input and output nodes stay in the signal row
             users = [p for p in self.design.parts if far in p.nets]
             if len(users) != 2:
                 continue

@@ -17,6 +17,7 @@ from docgen.draw.placement import Placed, Placement
 
 COLUMN_GAP = 2.5
 ROW_GAP = 3.0
+MAX_STACK = 4  # parts per column before a new column starts (keeps the aspect sane)
 RAIL_ORDER = {"up": 2, "ground": 1, "down": 0}
 
 
@@ -44,8 +45,10 @@ def layered_layout(design: Design, rails: dict[str, str], hints: Hints,
         columns.setdefault(rank, []).append(part)
     placed: list[Placed] = []
     cursor = 0.0
-    for rank in sorted(columns):
-        stack = [place(p, _orientation(p, rails, hints), (0.0, 0.0)) for p in columns[rank]]
+    stacks = [parts[i:i + MAX_STACK] for rank in sorted(columns)
+              for parts in [columns[rank]] for i in range(0, len(parts), MAX_STACK)]
+    for parts in stacks:
+        stack = [place(p, _orientation(p, rails, hints), (0.0, 0.0)) for p in parts]
         left = min(extent(p)[0] for p in stack)
         right = max(extent(p)[1] for p in stack)
         y = 0.0

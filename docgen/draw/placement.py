@@ -114,6 +114,7 @@ def wire(placement: Placement) -> Placement:
     for net in sorted(signal_nets, key=lambda n: (_spread(pins_by_net[n]), n)):
         pins = sorted(node for node, _ in pins_by_net[net])
         _route_net(grid, placement, ports, net, pins)
+    grid.reserved.clear()  # every pin has its wire now; unused exits may hold a flag
     for index, net in enumerate(placement.flags):
         if net in pins_by_net and net not in placement.rails and net not in placement.flagged:
             _name_flag(grid, ports, net, rightmost=index > 0)
