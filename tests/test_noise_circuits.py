@@ -33,6 +33,9 @@ R1  resistor 10k        : in out
     assert noise["input_rms_v"] == pytest.approx(math.sqrt(4 * K * T25 * 10e3 * (20e3 - 20)),
                                                  rel=1e-9)
     assert noise["band_hz"] == [20.0, 20e3]
+    # Densities cover the whole response sweep; only the band is integrated.
+    assert noise["freq_hz"][0] == 10.0 and noise["freq_hz"][-1] == 1e6
+    assert 20.0 in noise["freq_hz"] and 20e3 in noise["freq_hz"]
     assert noise["contributors"][0]["part"] == "R1"
 
 

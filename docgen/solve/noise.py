@@ -39,7 +39,7 @@ from docgen.solve import mna, phasor, spectra
 from docgen.solve.curves import log_sweep
 from docgen.solve.linearise import SmallSignal, nominal_network, opamp_gain_at
 from docgen.solve.operating_point import part_quantities
-from docgen.solve.response import endpoints, singular, transfer
+from docgen.solve.response import endpoints, singular, sweep, transfer
 
 Array = np.ndarray
 
@@ -245,13 +245,26 @@ def _figures(
     return out
 
 
+def noise_grid(bench: Any) -> tuple[Array, slice]:
+    """The noise grid and the slice of it that is the band.
+
+    Inside the band: the band's own log-spaced grid (its ends are grid points); outside it, the
+    response sweep's points, so densities are reported wherever the response is.
+    """
+    low, high = noise_band(bench)
+    band = log_sweep(low, high, bench.points_per_decade)
+    response_grid = sweep(bench)
+    below = response_grid[response_grid < low * (1 - 1e-9)]
+    above = response_grid[response_grid > high * (1 + 1e-9)]
+    return np.concatenate([below, band, above]), slice(len(below), len(below) + len(band))
+
+
 def analyse(ctx: Any) -> dict[str, Any]:
     """The ``noise`` section for the nominal design (see docs/results.md)."""
     input_part, output_net = endpoints(ctx)
     network = nominal_network(ctx)
     bench = ctx.circuit.bench
-    low, high = noise_band(bench)
-    freq = log_sweep(low, high, bench.points_per_decade)  # the band's ends are grid points
+    freq, band = noise_grid(bench)
     sources = noise_sources(network, freq)
     try:
         per_source = output_noise(network, freq, output_net, sources)[:, 0]  # (P, F), sample 0
@@ -262,26 +275,27 @@ def analyse(ctx: Any) -> dict[str, Any]:
     with np.errstate(divide="ignore", invalid="ignore"):
         input_density = np.sqrt(total) / gain
     signal = network.solution.problem.values[input_part]
-    signal_hz = float(signal["frequency"][0])
-    gain_at_signal = float(np.abs(transfer(network, np.array([signal_hz]), input_part,
-                                           output_net)[0, 0]))
+    signal_rms = float(signal["value"][0]) / math.sqrt(2.0)
+    gain_at_signal = float(np.abs(transfer(network, np.array([float(signal["frequency"][0])]),
+                                           input_part, output_net)[0, 0]))
     is_source = np.array([s.part == input_part for s in sources], dtype=bool)
     source_power = per_source[is_source].sum(axis=0) if is_source.any() else np.zeros_like(total)
-    kelvin = float(network.solution.problem.temperature_k[0])
-    input_rms = float(spectra.rms(freq, input_density**2))
-    powers = {(s.part, s.mechanism): float(spectra.integrate_band(freq, p))
+    in_band = freq[band]
+    input_rms = float(spectra.rms(in_band, input_density[band] ** 2))
+    powers = {(s.part, s.mechanism): float(spectra.integrate_band(in_band, p[band]))
               for s, p in zip(sources, per_source, strict=True)}
     return {
         "freq_hz": [float(f) for f in freq],
-        "band_hz": [low, high],
+        "band_hz": list(noise_band(bench)),
         "temperature_c": float(network.solution.problem.temperature_c[0]),
         "output_density_v_per_rthz": [float(v) for v in np.sqrt(total)],
         "input_density_v_per_rthz": [_number(v) for v in input_density],
         "input_rms_v": _number(input_rms),
         "input_rms_reason": None if math.isfinite(input_rms) else (
             "the gain is zero somewhere in the band, so the input-referred noise is unbounded"),
-        "signal_rms_v": float(signal["value"][0]) / math.sqrt(2.0),
-        **_figures(freq, total, source_power, kelvin, float(signal["value"][0]) / math.sqrt(2.0),
-                   gain_at_signal, float(signal["source"][0])),
+        "signal_rms_v": signal_rms,
+        **_figures(in_band, total[band], source_power[band],
+                   float(network.solution.problem.temperature_k[0]), signal_rms, gain_at_signal,
+                   float(signal["source"][0])),
         "contributors": [c for c in spectra.rank_contributors(powers) if c["share"] > 0],
     }
