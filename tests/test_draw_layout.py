@@ -175,3 +175,24 @@ def test_hint_diagnostics(text: str, where: tuple[int, int], words: list[str]) -
     rendered = diagnostic.render()
     for word in words:
         assert word in rendered
+
+
+def test_documented_layout_example_reads() -> None:
+    import re
+
+    from docgen.draw.hints import read_hints
+    from docgen.reader import read_text
+
+    doc = (Path(__file__).parent.parent / "docs" / "format.md").read_text(encoding="utf-8")
+    example = re.search(r"^```layout\n(.*?)^```$", doc, re.S | re.M).group(1)
+    circuit = "\n".join(
+        ["VP supply 12 V : vcc gnd", "VS signal 1 mV 1 kHz : in gnd",
+         "CI capacitor 1u : in b1", "R1 resistor 10k : vcc b1", "R2 resistor 10k : b1 gnd",
+         "Q1 npn generic-npn : c=c1 b=b1 e=gnd", "RC resistor 10k : vcc c1",
+         "Q2 pnp generic-pnp : c=c2 b=c1 e=vcc", "CE capacitor 1u : c2 gnd"])
+    page = (f"---\ntitle: t\n---\n\n```circuit\n{circuit}\n```\n\n```bench\ninput VS\n"
+            f"output c2\n```\n\n```layout\n{example}```\n")
+    hints = read_hints(read_text(page, "t.md"))
+    assert hints.after == [("Q2", "Q1")] and hints.mirror == {"Q2"}
+    assert hints.turn == {"CE"} and hints.labels == ["b1", "c2"]
+    assert hints.arrangement == "layered"
