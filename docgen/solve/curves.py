@@ -269,4 +269,6 @@ def log_sweep(f_start: float, f_stop: float, points_per_decade: int) -> np.ndarr
     per decade (at least two points)."""
     decades = math.log10(f_stop / f_start)
     count = max(2, int(math.ceil(decades * points_per_decade - 1e-9)) + 1)
-    return np.logspace(math.log10(f_start), math.log10(f_stop), count)
+    freq = np.logspace(math.log10(f_start), math.log10(f_stop), count)
+    freq[0], freq[-1] = f_start, f_stop  # exactly the ends asked for, not 10**log10(f)
+    return freq
