@@ -174,8 +174,12 @@ class _System:
     def add(self, idx: tuple[int, ...], jacobian: Array, constant: Array) -> None:
         """Add ``jacobian·x_local + constant`` to the rows ``idx`` (moves ``constant`` right)."""
         rows = np.asarray(idx)
-        np.add.at(self.matrix, (slice(None), rows[:, None], rows[None, :]), jacobian)
-        np.add.at(self.rhs, (slice(None), rows), -constant)
+        if len(set(idx)) == len(idx):  # distinct rows: plain indexing adds correctly (fast)
+            self.matrix[:, rows[:, None], rows[None, :]] += jacobian
+            self.rhs[:, rows] -= constant
+        else:  # two terminals on one net (a diode-connected transistor): accumulate
+            np.add.at(self.matrix, (slice(None), rows[:, None], rows[None, :]), jacobian)
+            np.add.at(self.rhs, (slice(None), rows), -constant)
 
 
 def _resistance_at(values: Mapping[str, Array], temperature_c: Array) -> Array:
