@@ -73,3 +73,15 @@ def test_override_lengths_must_agree():
 def test_unknown_override_is_refused():
     with pytest.raises(KeyError):
         solve_op(make_circuit(CE), {("R9", "value"): 1.0})
+
+
+def test_starting_from_the_nominal_point_gives_the_same_answer_in_fewer_iterations():
+    circuit = make_circuit(CE)
+    rng = np.random.default_rng(3)
+    overrides = {("RC", "value"): 4.7e3 * rng.uniform(0.9, 1.1, 50),
+                 ("Q1", "beta"): rng.uniform(100, 300, 50)}
+    cold = solve_op(circuit, overrides)
+    warm = solve_op(circuit, overrides, start=solve_op(circuit))
+    assert warm.converged.all()
+    np.testing.assert_allclose(warm.voltages, cold.voltages, rtol=1e-9, atol=1e-12)
+    assert warm.dc.iterations.max() < cold.dc.iterations.min()

@@ -236,7 +236,7 @@ def _companion(ctx: _StampContext, positions: tuple[int, ...], projection: Array
     """Stamp a device whose normalised currents f(u) depend on controls u = p·P·v."""
     v = ctx.x_full[:, [ctx.idx[p] for p in positions]]
     u_new = polarity * v @ projection.T
-    u_old = ctx.state.get(ctx.device.name, np.zeros_like(u_new))
+    u_old = ctx.state.get(ctx.device.name, u_new)  # first iteration: trust the start point
     use_limit = limit is not None and ctx.limiting
     u = limit(u_new, u_old) if use_limit else u_new  # type: ignore[misc]
     ctx.new_state[ctx.device.name] = u

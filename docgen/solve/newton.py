@@ -246,15 +246,21 @@ def _source_stepping(problem: Problem, options: SolveOptions) -> _Attempt:
     return last
 
 
-def solve_dc(problem: Problem, options: SolveOptions | None = None) -> DcResult:
+def solve_dc(problem: Problem, options: SolveOptions | None = None,
+             start: Array | None = None) -> DcResult:
     """Solve the DC operating point of every sample of ``problem``.
 
+    :param start: an initial guess ``(M,)`` or ``(S, M)`` for plain Newton (for example the
+        nominal solution when solving tolerance samples); the stepping stages still start
+        from 0 V.
     Never raises for non-convergence: the caller decides what a failed sample means (the
     operating point reports it as an error; the spread analysis counts it as a failing board).
     """
     options = options or SolveOptions()
     samples, size = problem.samples, problem.layout.size
-    result = newton(problem, np.zeros((samples, size)), {}, options)
+    x0 = np.zeros((samples, size)) if start is None else \
+        np.broadcast_to(np.asarray(start, dtype=float), (samples, size)).copy()
+    result = newton(problem, x0, {}, options)
     method = np.where(result.converged, 0, -1)
     attempts = ["newton"]
     stages = [(options.gmin_stepping, _gmin_stepping, 1),

@@ -2,7 +2,7 @@
 
 Public API::
 
-    solution = solve_op(circuit, overrides=None, temperature=None, options=None)
+    solution = solve_op(circuit, overrides=None, temperature=None, options=None, start=None)
     solution.voltages          # (S, N) node voltages in circuit.nets order
     solution.voltage("c1")     # (S,)
     solution.currents["R1"]    # (S, T) current from each terminal's net into the part
@@ -100,15 +100,21 @@ def solve_op(
     overrides: mna.Overrides | None = None,
     temperature: Array | float | None = None,
     options: SolveOptions | None = None,
+    start: OpSolution | Array | None = None,
 ) -> OpSolution:
     """Solve the operating point of ``circuit`` for every sample (see the module docstring).
+
+    :param start: a solution (its first sample) or unknowns ``(M,)``/``(S, M)`` to start plain
+        Newton from: the nominal point makes tolerance samples converge in a few iterations.
 
     :raises CircuitError: the wiring cannot have an operating point (floating net, source
         loop, current source with no path); checked before any solving.
     """
     check_dc_topology(circuit)
     problem = mna.build_problem(circuit, overrides, temperature)
-    dc = solve_dc(problem, options)
+    if isinstance(start, OpSolution):
+        start = start.x[0]
+    dc = solve_dc(problem, options, start)
     currents = mna.device_currents(problem, dc.x)
     finite = np.all(np.isfinite(dc.x), axis=1)
     for value in currents.values():
