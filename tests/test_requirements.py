@@ -11,7 +11,7 @@ import math
 
 import pytest
 
-from docgen.check.requirements import margin, read, verdicts
+from docgen.check.requirements import margin, read, verdicts, yield_of
 from docgen.design import Design, Header, Part, Requirement
 from docgen.diagnostics import Span
 from docgen.reader.require import parse_limit
@@ -145,3 +145,15 @@ def test_bad_requirements_are_diagnostics(metric: str, limit: str, col: int, mes
     assert message in problems[0].message
     rows = verdicts(design, RESULTS)
     assert rows[1]["verdict"] == "invalid" and rows[1]["severity"] == "error"
+
+
+def test_yield_over_boards_for_the_spread_analysis() -> None:
+    """Board 1 meets both, board 2 fails the current, board 3 did not solve: 1 of 3."""
+    design = _design([("Q1 collector current", "0.5 mA .. 2 mA", ()),
+                      ("voltage at c1", "> 7 V", ())])
+    overall, each = yield_of(design, {"Q1 collector current": [1e-3, 2.5e-3, None],
+                                      "voltage at c1": [7.5, 7.2, 7.1]})
+    assert overall == pytest.approx(1 / 3)
+    assert each == {"Q1 collector current : 0.5 mA .. 2 mA": pytest.approx(1 / 3),
+                    "voltage at c1 : > 7 V": 1.0}
+    assert yield_of(design, {}) == (None, {})

@@ -172,6 +172,34 @@ def analyse(ctx: Any) -> list[dict[str, Any]]:
     return verdicts(ctx.design, ctx.results)
 
 
+def yield_of(design: Design, values: dict[str, Sequence[float | None]]
+             ) -> tuple[float | None, dict[str, float]]:
+    """The fraction of boards meeting every requirement, and each requirement's own fraction.
+
+    For the spread analysis: ``values`` maps a metric's canonical key to its value on each
+    board (``None`` for a board that did not solve: it fails).  Requirements whose metric has
+    no values are left out; the overall yield is ``None`` when none has values.
+    """
+    checked, _ = read(design)
+    passing: list[list[bool]] = []
+    each: dict[str, float] = {}
+    for item in checked:
+        found = values.get(item.metric.key)
+        if found is None:
+            continue
+        low, high = _bounds(item)
+        ok = [v is not None and math.isfinite(v) and margin(v, low, high)[0] >= 0
+              for v in found]
+        passing.append(ok)
+        each[f"{item.metric.text} : {item.requirement.limit.text}"] = sum(ok) / len(ok) \
+            if ok else 0.0
+    if not passing:
+        return None, each
+    boards = min(len(p) for p in passing)
+    overall = sum(all(p[i] for p in passing) for i in range(boards)) / boards if boards else 0.0
+    return overall, each
+
+
 def metrics_of(design: Design) -> Sequence[Metric]:
     """The metrics a page's requirements and estimates use (for ``sections_needed``)."""
     from docgen.check import estimates
