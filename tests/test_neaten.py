@@ -8,17 +8,16 @@ and prose untouched).
 
 from __future__ import annotations
 
-import dataclasses
 import shutil
 from pathlib import Path
 
 import pytest
 
 from docgen.cli import main
-from docgen.design import Design
 from docgen.diagnostics import InputError
 from docgen.neaten import neaten_text
 from docgen.reader import read_text
+from tests.reader_helpers import meaning
 
 FIXTURES = Path(__file__).parent / "fixtures" / "neaten"
 DESIGNS = Path(__file__).parent.parent / "designs"
@@ -37,21 +36,6 @@ def test_idempotent() -> None:
     assert neaten_text(once) == once
 
 
-def _meaning(design: Design) -> tuple:
-    """A design without positions: what must survive neatening."""
-    def strip(obj):
-        if dataclasses.is_dataclass(obj):
-            return tuple((f.name, strip(getattr(obj, f.name))) for f in dataclasses.fields(obj)
-                         if f.name not in ("span", "spans", "metric_span", "limit_span",
-                                           "source", "blocks", "warnings", "text"))
-        if isinstance(obj, (tuple, list)):
-            return tuple(strip(o) for o in obj)
-        if hasattr(obj, "items"):
-            return tuple(sorted((k, strip(v)) for k, v in obj.items()))
-        return obj
-    return strip(design)
-
-
 def _pages() -> list[Path]:
     return [FIXTURES / "ragged.md", *sorted(DESIGNS.rglob("*.md"))]
 
@@ -64,7 +48,7 @@ def test_meaning_is_kept(path: Path) -> None:
     except InputError:
         pytest.skip("page does not read (another test reports it)")
     after = read_text(neaten_text(text), "x.md")
-    assert _meaning(after) == _meaning(before)
+    assert meaning(after) == meaning(before)
     assert neaten_text(neaten_text(text)) == neaten_text(text)
 
 

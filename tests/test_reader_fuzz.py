@@ -12,6 +12,7 @@ from hypothesis import strategies as st
 from docgen.diagnostics import Diagnostic, InputError
 from docgen.neaten import neaten_text
 from docgen.reader import read_text
+from tests.reader_helpers import meaning
 
 DESIGNS = sorted((Path(__file__).parent.parent / "designs").rglob("*.md"))
 SEEDS = [p.read_text(encoding="utf-8") for p in DESIGNS] + [
@@ -128,8 +129,9 @@ def read_checked(text: str) -> None:
         assert_positions(text, exc.diagnostics)
         return
     assert_positions(text, design.warnings)
-    again = neaten_text(text, "fuzz.md")  # a readable page can always be neatened
-    assert neaten_text(again, "fuzz.md") == again
+    neat = neaten_text(text, "fuzz.md")  # a readable page can always be neatened ...
+    assert neaten_text(neat, "fuzz.md") == neat  # ... once for all
+    assert meaning(read_text(neat, "fuzz.md")) == meaning(design)  # and keeps its meaning
 
 
 @pytest.mark.slow

@@ -208,7 +208,7 @@ def _read_line(line: SourceLine, collector: Collector, values: dict[str, Any],
     value_span = Span(line.number, value_col, len(text))
     spans[key] = value_span
     if key in EXTRA_KEYS:
-        extra[key] = text
+        extra[key] = " ".join(text.split())  # single spaces, as neaten writes it
         return
     try:
         values.update(KEYS[key][0](text))

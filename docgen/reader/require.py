@@ -79,7 +79,8 @@ def _read_line(line: SourceLine, collector: Collector) -> Requirement | None:
     except LimitError as exc:
         report_quantity(collector, limit_span, exc)  # same fields as a QuantityError
         return None
-    return Requirement(metric, limit, across, whole, metric_span, limit_span)
+    # whitespace inside the metric is one space, as neaten writes it
+    return Requirement(" ".join(metric.split()), limit, across, whole, metric_span, limit_span)
 
 
 def parse_limit(text: str) -> Limit:
