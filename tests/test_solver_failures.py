@@ -185,3 +185,21 @@ R2  resistor  1k    : b gnd
     (d,) = caught.value.diagnostics
     assert "net 'b'" in d.message and "singular" in d.message
     assert d.line == FIRST_LINE + 1
+
+
+def test_a_signal_source_without_source_resistance_across_a_supply_is_a_loop():
+    error = _error("""
+V1  supply    5 V        : a gnd
+VS  signal    1 mV 1 kHz : a gnd
+R1  resistor  1k         : a gnd
+""")
+    (d,) = error.diagnostics
+    assert "signal VS" in d.message and "supply V1" in d.message and "net" in d.message
+    # with a source resistance it is an ordinary circuit
+    solution = solve_op(make_circuit("""
+V1  supply    5 V                 : a gnd
+VS  signal    1 mV 1 kHz source=50 : a gnd
+R1  resistor  1k                  : a gnd
+"""))
+    assert solution.voltage("a")[0] == pytest.approx(5.0)
+    assert solution.currents["VS"][0, 0] == pytest.approx(5.0 / 50)
