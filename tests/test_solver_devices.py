@@ -176,3 +176,26 @@ def test_junction_limiting_damps_large_forward_steps_only():
     assert devices.limit_junction(np.array([5.0]), np.array([0.6]), n_vt, crit)[0] < 0.8
     assert devices.limit_junction(np.array([0.5]), np.array([0.4]), n_vt, crit)[0] == 0.5
     assert devices.limit_junction(np.array([-20.0]), np.array([0.6]), n_vt, crit)[0] == -20.0
+
+
+def test_beta_rises_about_half_a_percent_per_kelvin():
+    # Common practice: a silicon transistor's β rises by roughly 0.5–1 %/K near room
+    # temperature; the generic model's exponent 1.5 must land in that band.
+    from solver_helpers import _BUILTINS
+
+    exponent = _BUILTINS["generic-npn"].params["beta_temperature_exponent"].value
+    ratio = float(devices.beta_at(1.0, T25 + 10.0, exponent))
+    assert 0.005 <= (ratio - 1.0) / 10.0 <= 0.01
+
+
+def test_resistor_tempco_shifts_a_divider():
+    # R(T) = R25·(1 + α·(T − 25 °C)) for a linear tempco α (IEC 60115-1 defines the
+    # temperature coefficient this way, from memory): +1000 ppm/K on the top resistor at 75 °C
+    # makes it 5 % larger.
+    circuit = """
+V1  supply   10 V                 : a gnd
+R1  resistor 1k tempco=1000ppm    : a b
+R2  resistor 1k                   : b gnd
+"""
+    hot = solve(circuit, temperature=75.0)
+    assert v(hot, "b") == pytest.approx(10 * 1e3 / (1e3 + 1.05e3), rel=1e-12)
