@@ -8,6 +8,7 @@ for the content-based cache key.
 
 from __future__ import annotations
 
+import posixpath
 from collections.abc import Callable, Iterable, Iterator, Mapping
 from dataclasses import dataclass, field
 from functools import partial
@@ -15,7 +16,7 @@ from importlib import resources
 from pathlib import Path
 
 from docgen.design import Design, ModelDef, frozen_map
-from docgen.diagnostics import Collector, Diagnostic, DocgenError, did_you_mean
+from docgen.diagnostics import Collector, Diagnostic, DocgenError, Span, did_you_mean
 from docgen.kinds import KINDS
 from docgen.reader import read_file, read_text
 from docgen.reader.common import article
@@ -115,6 +116,7 @@ def _assemble(root: str, pages: list[Design], extra_pages: list[Design],
     uses = {}
     for design in (p for p in pages if p.kind == "design"):
         uses[design.path] = _check_models(design, library, owners, diagnostics)
+    _check_replacements(pages, diagnostics)
     return Record(root, tuple(pages), frozen_map(diagnostics), frozen_map(library),
                   frozen_map(uses))
 
@@ -185,6 +187,25 @@ def _check_models(design: Design, library: Mapping[str, ModelDef], owners: Mappi
             used.add(owners[part.model])
     _merge(diagnostics, design.path, collector.items)
     return tuple(sorted(used))
+
+
+def _check_replacements(pages: list[Design],
+                        diagnostics: dict[str, tuple[Diagnostic, ...]]) -> None:
+    """Warn where ``replaced-by`` names no page of the record (relative to the page's folder)."""
+    paths = {p.path for p in pages} | set(diagnostics)
+    for page in pages:
+        target = page.header.replaced_by
+        if target is None:
+            continue
+        resolved = posixpath.normpath(posixpath.join(posixpath.dirname(page.path), target))
+        if resolved in paths:
+            continue
+        collector = Collector(page.path, page.source.splitlines())
+        names = [posixpath.relpath(p, posixpath.dirname(page.path) or ".") for p in paths]
+        collector.add(page.header.spans.get("replaced-by", Span(1, 1)),
+                      f"replaced-by names no page of the record: '{target}'",
+                      hint=did_you_mean(target, names), severity="warning")
+        _merge(diagnostics, page.path, collector.items)
 
 
 def _merge(diagnostics: dict[str, tuple[Diagnostic, ...]], path: str,

@@ -246,3 +246,15 @@ def test_record(tmp_path: Path) -> None:
     own = read_text(PAGE, "own.md")
     assert record.models_for(own)["bench-npn"].params["beta"].value == 200.0
     assert record.library["generic-npn"].source == "<built-in>"
+
+
+def test_replaced_by_must_name_a_page(tmp_path: Path) -> None:
+    retired = PAGE.replace("status: approved\n", "status: retired\nreplaced-by: preamp-v3.md\n")
+    (tmp_path / "preamp-v1.md").write_text(retired, encoding="utf-8")
+    (tmp_path / "preamp-v2.md").write_text(PAGE, encoding="utf-8")
+    (d,) = load_record(tmp_path).all_diagnostics
+    assert (d.line, d.col, d.severity) == (4, len("replaced-by: ") + 1, "warning")
+    assert d.message == "replaced-by names no page of the record: 'preamp-v3.md'"
+    assert d.hint == "did you mean 'preamp-v2.md'?"
+    (tmp_path / "preamp-v1.md").write_text(retired.replace("v3", "v2"), encoding="utf-8")
+    assert load_record(tmp_path).all_diagnostics == ()
