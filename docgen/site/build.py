@@ -19,7 +19,7 @@ from typing import Any
 
 from docgen.cachekey import cache_key
 from docgen.diagnostics import Diagnostic, Span
-from docgen.site.cache import BundleCache
+from docgen.site.cache import BundleCache, code_fingerprint
 from docgen.site.compute import compute_bundle, compute_in_worker, init_worker
 from docgen.site.record_view import PageEntry, RecordView, read_record
 
@@ -93,9 +93,11 @@ def solve_all(view: RecordView, wanted: list[str], options: BuildOptions,
     """Bundles for the designs in ``wanted``: from the cache, or computed (in parallel)."""
     cache_root = options.cache_dir
     cache = BundleCache(None if cache_root in (None, False) else Path(cache_root))  # type: ignore[arg-type]
-    # The path is part of the key: results and diagnostics name the file as it was given.
+    # The path is part of the key (results and diagnostics name the file as it was given), and
+    # so is docgen's own code (the version alone does not change between releases).
+    code = code_fingerprint()
     keys = {rel: cache_key(view.entries[rel].source, view.entries[rel].library_bytes,
-                           extra=view.entries[rel].path) for rel in wanted}
+                           extra=f"{view.entries[rel].path}\0{code}") for rel in wanted}
     bundles: dict[str, dict[str, Any]] = {}
     missing = []
     for rel in wanted:
