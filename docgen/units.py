@@ -160,6 +160,8 @@ def parse_quantity(text: str) -> Quantity:
     match = _NUMBER_RE.match(stripped)
     if not match:
         hint = "a value starts with a number, e.g. '4.7k' or '4k7'"
+        if stripped.lower().lstrip("+-\u2212") in ("inf", "infinity", "∞"):
+            hint = "leave the setting out: its default is the neutral value (infinite here)"
         raise QuantityError(f"'{stripped}' is not a number", hint, lead, len(stripped))
     number = match["num"]
     rest = match["rest"]

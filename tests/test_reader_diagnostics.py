@@ -102,6 +102,7 @@ CASES = [
     (12, "R1  resistor 100k source=1k : vcc b", "source", "unknown setting 'source'", None),
     # circuit: names and connections
     (12, "1R  resistor 100k : vcc b", "1R", "'1R' is not a part name", None),
+    (12, "R1 : vcc b", "R1", "a part line starts with a name and a kind", None),
     (12, "R1  resistor 100k vcc b", None, "a part line needs ':'", None),
     (12, "R1  resistor 100k : vcc b gnd", "gnd", "a resistor connects to 2 nets, not 3", None),
     (12, "R1  resistor 100k : vcc", ":", "a resistor connects to 2 nets, not 1", None),
@@ -295,3 +296,25 @@ def test_duplicate_model_across_library_pages(tmp_path: Path) -> None:
     })
     assert [(d.path.rsplit("/", 1)[-1], d.line, d.col) for d in found] == [("b.md", 4, 1)]
     assert "also defined in" in found[0].message and found[0].message.endswith("a.md")
+
+
+def test_empty_circuit_block() -> None:
+    found = diagnostics("---\ntitle: t\n---\n\n```circuit\n# nothing yet\n```\n")
+    assert [(d.line, d.col, d.message) for d in found] == [
+        (5, 1, "the circuit block has no parts")]
+
+
+def test_second_bench_block_and_blocks_on_a_note_page() -> None:
+    found = diagnostics(BASE + "\n```bench\nboards 10\n```\n")
+    assert [(d.line, d.col, d.message) for d in found] == [
+        (len(LINES) + 2, 1, "a second bench block")]
+    note = "Notes.\n\n```bench\nboards 10\n```\n\n```require\ngain : > 1 dB\n```\n"
+    warnings = diagnostics(note)
+    assert [(d.line, d.severity) for d in warnings] == [(3, "warning"), (7, "warning")]
+    assert all("ignored" in d.message for d in warnings)
+
+
+def test_infinite_parameter_hint() -> None:
+    (d,) = diagnostics("```models\nm npn early_voltage=inf\n```\n")
+    assert (d.line, d.col) == (2, len("m npn early_voltage=") + 1)
+    assert d.hint is not None and "leave the setting out" in d.hint
