@@ -22,7 +22,8 @@ from docgen.diagnostics import InputError
 from docgen.draw import draw, draw_svg, readback
 
 AMPLIFIER_DRAWN = ["common_emitter", "emitter_follower", "feedback_pair", "differential_pair",
-                   "jfet_buffer", "opamp_noninverting", "opamp_inverting", "pnp_stage"]
+                   "jfet_buffer", "opamp_noninverting", "opamp_inverting", "pnp_stage",
+                   "complementary_follower"]
 
 
 @pytest.fixture(scope="module")
@@ -82,6 +83,16 @@ def test_transistors_upright_and_signal_left_to_right(drawn: dict, name: str) ->
     assert source_x <= min(x for (_, _), (x, _) in geo.pins.items()) + 1e-9
     out_flags = [p for net, p in geo.ports if net == design.bench.output]
     assert out_flags and out_flags[0][0] > source_x
+
+
+def test_push_pull_pair_stands_as_a_totem(drawn: dict) -> None:
+    pins = _geometry(drawn["complementary_follower"][1]).pins
+    # npn above pnp in one column, emitters facing; the bias string in a column to the left
+    assert pins[("Q1", "e")][0] == pytest.approx(pins[("Q2", "e")][0])
+    assert pins[("Q1", "e")][1] > pins[("Q2", "e")][1]
+    assert pins[("D1", "anode")][0] == pytest.approx(pins[("D2", "cathode")][0])
+    assert pins[("D1", "anode")][0] < pins[("Q1", "b")][0]
+    assert pins[("D1", "anode")][1] > pins[("D2", "cathode")][1]
 
 
 def test_coupling_capacitors_lie_horizontal(drawn: dict) -> None:

@@ -21,12 +21,14 @@ from docgen.draw import classify
 from docgen.draw.hints import Hints
 from docgen.draw.placement import LABEL_GAP, Placed, Placement
 from docgen.draw.route import PITCH
+from docgen.draw.totem import DEVICE_Y, INPUT, N_TYPE, STRING_Y, Totem, find_totems
 
 UPPER_Y = 4.0
 LOWER_Y = -4.0
 TOP_LEVEL = 5.5
 BOTTOM_LEVEL = -5.5
 GAP = 1.0
+STACK_OFFSET = 2.5  # a part above/below a pin: its centre this far from the pin
 CHAIN_STEP = 3.5  # between the centres of two parts in series in one column
 FEEDBACK_CLEARANCE = 2.5  # room for rail symbols between the stage and a feedback part
 OPAMP_FEEDBACK_Y = 3.0
@@ -93,6 +95,7 @@ class _Builder:
         self.feedback: list[Part] = []
         self.rail_parts: list[Part] = []
         self.chain: dict[str, Part] = {}  # a chain head -> the rail part below/above it
+        self.totems: dict[str, Totem] = {}  # upper device -> its push-pull pair
         self.placed: list[Placed] = []
 
     # ---- roles ---------------------------------------------------------------------------
@@ -171,19 +174,29 @@ class _Builder:
     # ---- placing rows --------------------------------------------------------------------
 
     def input_nets(self, part: Part) -> set[str]:
+        if part.name in self.totems:  # the bias string and both bases take the signal
+            totem = self.totems[part.name]
+            return {n for p in totem.bias_parts for n in p.nets} | {
+                d.net(INPUT[d.kind]) for d in (totem.upper, totem.lower)}
         if part.kind in classify.ACTIVE:
             return {n for t, n in part.terminals if t in classify.INPUT_TERMINALS}
         ranked = sorted(part.nets, key=lambda n: self.ranks.get(n, 0))
         return {ranked[0]}
+
+    def item_nets(self, part: Part) -> set[str]:
+        """The nets of a signal-row item (a push-pull pair counts all its parts)."""
+        if part.name in self.totems:
+            return {n for p in self.totems[part.name].parts for n in p.nets}
+        return set(part.nets)
 
     def stacks(self, part: Part, placed: Placed, taken: set[str]) -> list[Placed]:
         """Parts standing straight above/below a transistor's top and bottom pins."""
         out = []
         for terminal, (pin, outward) in placed.pins().items():
             net = part.net(terminal)
-            side, row, y = ((self.upper, "upper", UPPER_Y) if outward == (0, 1)
-                            else (self.lower, "lower", LOWER_Y) if outward == (0, -1)
-                            else (None, "", 0.0))
+            side, row, y = ((self.upper, "upper", pin[1] + STACK_OFFSET) if outward == (0, 1)
+                            else (self.lower, "lower", pin[1] - STACK_OFFSET)
+                            if outward == (0, -1) else (None, "", 0.0))
             if side is None or net in taken or not side.get(net) or part.kind == "opamp":
                 continue
             taken.add(net)
@@ -199,14 +212,60 @@ class _Builder:
             out.append(place(partner, self.orient(partner, row), (x, y + offset)))
         return out
 
+    def find_totems(self) -> None:
+        """Push-pull pairs: the upper device stays in the signal row and stands for all."""
+        pool = [p for p in self.middle + self.feedback if p.kind not in classify.ACTIVE]
+        devices = [p for p in self.middle if p.kind in classify.ACTIVE]
+        for found in find_totems(devices, pool):
+            self.totems[found.upper.name] = found
+            taken = {p.name for p in found.parts if p is not found.upper}
+            self.middle = [p for p in self.middle if p.name not in taken]
+            self.feedback = [p for p in self.feedback if p.name not in taken]
+            if found.bias_parts:  # the parts from the rails to the two bases
+                top = found.upper.net(INPUT[found.upper.kind])
+                bottom = found.lower.net(INPUT[found.lower.kind])
+                for side, row, node in ((self.upper, "upper", top), (self.lower, "lower", bottom)):
+                    if side.get(node):
+                        found.rail_parts.append((side[node].pop(0), row))
+
+    def totem_item(self, totem: Totem, cursor: float, stacked: set[str]) -> float:
+        """Place a push-pull pair and its bias string as one item of the signal row."""
+        group: list[Placed] = []
+        net = totem.upper.net(INPUT[totem.upper.kind])
+        heights = {1: STRING_Y[1:2], 2: STRING_Y[::2], 3: STRING_Y}.get(len(totem.bias_parts), ())
+        for part, y in zip(totem.bias_parts, heights, strict=True):
+            group.append(place(part, "down" if part.nets[0] == net else "up", (0.0, y)))
+            net = part.nets[1] if part.nets[0] == net else part.nets[0]
+        for part, row in totem.rail_parts:
+            y = DEVICE_Y + STACK_OFFSET if row == "upper" else -DEVICE_Y - STACK_OFFSET
+            group.extend(self.column(part, row, 0.0, y))
+        x = (max(extent(p)[1] for p in group) + GAP + 1.0) if group else 0.0
+        devices = [place(totem.upper, self.orient(totem.upper, "middle"), (x, DEVICE_Y)),
+                   place(totem.lower, self.orient(totem.lower, "middle"), (x, -DEVICE_Y))]
+        group.extend(devices)
+        net = totem.upper.net(N_TYPE[totem.upper.kind])
+        for part, y in zip(totem.emitter_parts, (2.0, -2.0), strict=False):
+            group.append(place(part, "down" if part.nets[0] == net else "up", (x, y)))
+            net = part.nets[1] if part.nets[0] == net else part.nets[0]
+        inner = {n for p in totem.parts for n in p.nets if p not in (totem.upper, totem.lower)}
+        inner.add(totem.upper.net(N_TYPE[totem.upper.kind]))
+        stacked.update(inner)  # nothing stands between the two devices
+        for device in devices:
+            group.extend(self.stacks(device.part, device, stacked))
+        left = min(extent(p)[0] for p in group)
+        right = max(extent(p)[1] for p in group)
+        self.placed.extend(shift(p, cursor - left) for p in group)
+        return cursor + right - left + GAP
+
     def run(self) -> Placement:
         self.sort_roles()
+        self.find_totems()
         slots_before: dict[str, list[str]] = {}
         slots_after: dict[str, list[str]] = {}
         nets_with_parts = [n for n in self.design.nets if self.upper.get(n) or self.lower.get(n)]
         for net in nets_with_parts:
             takers = [p for p in self.middle if net in self.input_nets(p)]
-            touchers = [p for p in self.middle if net in p.nets]
+            touchers = [p for p in self.middle if net in self.item_nets(p)]
             if takers:
                 slots_before.setdefault(takers[0].name, []).append(net)
             elif touchers:
@@ -217,7 +276,10 @@ class _Builder:
         for part in self.middle:
             for net in slots_before.get(part.name, []):
                 cursor = self.slot(net, cursor, placed_slots)
-            cursor = self.middle_part(part, cursor, stacked)
+            if part.name in self.totems:
+                cursor = self.totem_item(self.totems[part.name], cursor, stacked)
+            else:
+                cursor = self.middle_part(part, cursor, stacked)
             for net in slots_after.get(part.name, []):
                 cursor = self.slot(net, cursor, placed_slots)
         for net in nets_with_parts:

@@ -1,0 +1,78 @@
+"""The complementary push-pull pair drawn as a totem, the way it is drawn by hand.
+
+An n-type device (npn, n-JFET, n-MOSFET) above a p-type one, emitters (sources) facing each
+other and joined directly or through one part each with the output node between them at the
+signal row's height; the bias string between the two bases (diodes, a resistor) stands in its
+own column to the left, with the parts from the rails to the two bases above and below it.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+from docgen.design import Part
+
+N_TYPE = {"npn": "e", "njfet": "s", "nmos": "s"}
+P_TYPE = {"pnp": "e", "pjfet": "s", "pmos": "s"}
+INPUT = {"npn": "b", "pnp": "b", "njfet": "g", "pjfet": "g", "nmos": "g", "pmos": "g"}
+DEVICE_Y = 5.5  # the devices' centres above and below the signal row
+STRING_Y = (4.0, 0.0, -4.0)  # centres of a bias string of one to three parts (by count)
+
+
+@dataclass
+class Totem:
+    """A push-pull pair found in a circuit, with the parts that go with it."""
+
+    upper: Part
+    lower: Part
+    emitter_parts: list[Part] = field(default_factory=list)  # from the upper device down
+    bias_parts: list[Part] = field(default_factory=list)  # from the upper base down
+    rail_parts: list[tuple[Part, str]] = field(default_factory=list)  # (part, upper/lower)
+
+    @property
+    def parts(self) -> list[Part]:
+        """Every part the totem places."""
+        return [self.upper, self.lower, *self.emitter_parts, *self.bias_parts]
+
+
+def _series(start: str, goal: str, pool: list[Part], limit: int) -> list[Part] | None:
+    """A chain of at most ``limit`` two-terminal parts from net ``start`` to net ``goal``;
+    ``[]`` when the nets are the same."""
+    if start == goal:
+        return []
+    if limit == 0:
+        return None
+    for part in pool:
+        if start not in part.nets or part.nets[0] == part.nets[1]:
+            continue
+        other = part.nets[1] if part.nets[0] == start else part.nets[0]
+        rest = _series(other, goal, [p for p in pool if p is not part], limit - 1)
+        if rest is not None:
+            return [part, *rest]
+    return None
+
+
+def find_totems(parts: list[Part], two_terminal: list[Part]) -> list[Totem]:
+    """Push-pull pairs among ``parts`` (the signal row's devices); ``two_terminal`` are the
+    parts between two signal nodes that may join their emitters or bases."""
+    found: list[Totem] = []
+    used: set[str] = set()
+    for upper in parts:
+        if upper.kind not in N_TYPE or upper.name in used:
+            continue
+        for lower in parts:
+            if lower.kind not in P_TYPE or lower.name in used:
+                continue
+            pool = [p for p in two_terminal if p.name not in used]
+            emitters = _series(upper.net(N_TYPE[upper.kind]), lower.net(P_TYPE[lower.kind]),
+                               pool, 2)
+            if emitters is None or len(emitters) == 1:
+                continue
+            pool = [p for p in pool if p not in emitters]
+            bases = _series(upper.net(INPUT[upper.kind]), lower.net(INPUT[lower.kind]), pool, 3)
+            if bases is None:
+                continue
+            found.append(Totem(upper, lower, emitters, bases))
+            used.update(p.name for p in found[-1].parts)
+            break
+    return found
