@@ -77,6 +77,8 @@ def print_noise(noise: dict[str, Any], results: dict[str, Any]) -> list[str]:
         ["output noise (rms)", _or_none(noise.get("output_rms_v"), "V")],
         ["signal-to-noise ratio", _or_none(noise["snr_db"], "dB")],
         ["noise figure (T0 = 290 K)", _or_none(noise["figure_db"], "dB")],
+        [f"spot noise figure at {eng(results.get('ac', {}).get('signal_freq_hz'), 'Hz')}",
+         _or_none(noise.get("figure_at_signal_db"), "dB")],
     ]
     out += table(["figure", "value"], rows)
     out += _notes(noise, [("input-referred noise", "input_rms_reason"),

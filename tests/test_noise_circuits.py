@@ -95,6 +95,7 @@ VS  signal   10 mV 1 kHz source=50 : in gnd
 RT  resistor 50                  : in gnd
 """, bench=f"input VS\noutput in\nambient 16.85 °C\n{AUDIO}")["noise"]
     assert noise["figure_db"] == pytest.approx(10 * math.log10(2.0), abs=1e-9)
+    assert noise["figure_at_signal_db"] == pytest.approx(10 * math.log10(2.0), abs=1e-9)
 
 
 def test_noise_figure_undefined_without_source_resistance():

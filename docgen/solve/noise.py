@@ -245,6 +245,17 @@ def _figures(
     return out
 
 
+def _spot_figure(network: SmallSignal, freq_hz: float, input_part: str, output_net: str
+                 ) -> float | None:
+    """The IEEE spot noise figure at one frequency (per-hertz powers instead of band powers)."""
+    freq = np.array([freq_hz])
+    sources = noise_sources(network, freq)
+    per_source = output_noise(network, freq, output_net, sources)[:, 0, 0]
+    source = sum(p for s, p in zip(sources, per_source, strict=True) if s.part == input_part)
+    return spectra.noise_figure_db(float(per_source.sum()), float(source),
+                                   float(network.solution.problem.temperature_k[0]))
+
+
 def noise_grid(bench: Any) -> tuple[Array, slice]:
     """The noise grid and the slice of it that is the band.
 
@@ -287,6 +298,8 @@ def analyse(ctx: Any) -> dict[str, Any]:
     return {
         "freq_hz": [float(f) for f in freq],
         "band_hz": list(noise_band(bench)),
+        "figure_at_signal_db": _spot_figure(network, float(signal["frequency"][0]), input_part,
+                                            output_net),
         "temperature_c": float(network.solution.problem.temperature_c[0]),
         "output_density_v_per_rthz": [float(v) for v in np.sqrt(total)],
         "input_density_v_per_rthz": [_number(v) for v in input_density],
