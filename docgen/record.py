@@ -99,12 +99,14 @@ def load_record(root: str | Path, library_roots: Iterable[str | Path] = ()) -> R
     return _assemble(str(root), pages, extra_pages, diagnostics)
 
 
-def load_texts(root: str, texts: Mapping[str, str]) -> Record:
+def load_texts(root: str, texts: Mapping[str, str],
+               read: Callable[[str, str], Design] = read_text) -> Record:
     """A record from page texts keyed by path, read exactly as :func:`load_record` reads files.
 
     For pages that are not files on disk, such as a folder at a git revision (the history).
+    ``read`` may be a memoised :func:`docgen.reader.read_text` (pages repeat across revisions).
     """
-    readers = ((path, partial(read_text, texts[path], path)) for path in sorted(texts))
+    readers = ((path, partial(read, texts[path], path)) for path in sorted(texts))
     pages, diagnostics = _read_all(readers)
     return _assemble(root, pages, [], diagnostics)
 

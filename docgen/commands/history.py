@@ -39,7 +39,7 @@ def run(args: argparse.Namespace) -> int:
             repo = None  # the design is in another repository (or none)
     solver = solver_for(repo) if repo is not None else None
     if solver is None:
-        history = {"path": rel, "available": False, "rows": [],
+        history = {"path": rel, "available": False, "rows": [], "changed_since_approval": None,
                    "unavailable": "history is not available: the design is not in the same "
                                   "git repository as the designs folder"}
     else:
@@ -62,6 +62,10 @@ def render(history: dict) -> str:
     rows = history["rows"]
     out = [f"{history['path']}: {len(rows)} revision{'s' if len(rows) != 1 else ''}, "
            "newest first"]
+    flag = history.get("changed_since_approval")
+    if flag:
+        out.append(f"  {flag['message']}")
+        out.extend(f"    {change}" for change in flag["changes"])
     author_width = max(len(r["author"]) for r in rows)
     for row in rows:
         verdict = f"{row['passed']}/{row['total']} met" if row["total"] else "no requirements"

@@ -9,6 +9,7 @@ someone approves it again with a new date.  Prose, bench and header edits do not
 
 from __future__ import annotations
 
+from collections.abc import Iterable
 from pathlib import Path
 from typing import Any
 
@@ -44,12 +45,12 @@ def approval_check(repo: Repo, rel: str, root: str) -> dict[str, Any] | None:
     current = snapshot(repo, None, rel, root)
     if current.design is None or current.design.header.status != "approved":
         return None
-    if list_revisions(repo, rel).unavailable:
+    listing = list_revisions(repo, rel, current.uses)
+    if not listing.available:
         return None
-    approval = find_approval(repo, current, root)
-    if approval is None:
-        return None
-    return approval_info(approval, current)
+    snaps = (snapshot(repo, r.commit.sha, r.path, root) for r in listing.revisions)
+    approval = find_approval(current, snaps)
+    return approval_info(approval, current) if approval is not None else None
 
 
 def _relative(repo: Repo, path: str | Path) -> str:
@@ -59,13 +60,14 @@ def _relative(repo: Repo, path: str | Path) -> str:
         return Path(path).as_posix()
 
 
-def find_approval(repo: Repo, current: Snapshot, root: str) -> Snapshot | None:
-    """The snapshot at which the current approval was given (``None``: not committed yet)."""
-    date = current.design.header.approved if current.design else None
-    listing = list_revisions(repo, current.path, current.uses)
+def find_approval(current: Snapshot, snaps: Iterable[Snapshot]) -> Snapshot | None:
+    """The snapshot at which the current approval was given, from ``snaps`` (newest first);
+    ``None`` when the current approval is not committed yet (or the design is not approved)."""
+    if current.design is None or current.design.header.status != "approved":
+        return None
+    date = current.design.header.approved
     approval = None
-    for revision in listing.revisions:  # newest first
-        then = snapshot(repo, revision.commit.sha, revision.path, root)
+    for then in snaps:
         header = then.design.header if then.design else None
         if header is None or header.status != "approved" or header.approved != date:
             break

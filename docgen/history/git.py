@@ -70,6 +70,7 @@ class Repo:
 
     def __init__(self, root: Path):
         self.root = Path(root)
+        self._facts: dict[str, bool] = {}  # has commits / is shallow: asked once per Repo
 
     @classmethod
     def find(cls, start: Path | str) -> Repo | None:
@@ -95,12 +96,17 @@ class Repo:
         return Path(path).resolve().relative_to(self.root.resolve()).as_posix()
 
     def has_commits(self) -> bool:
-        """True once the repository has a ``HEAD`` commit."""
-        return self.resolve("HEAD") is not None
+        """True once the repository has a ``HEAD`` commit (remembered once true)."""
+        if not self._facts.get("commits"):
+            self._facts["commits"] = self.resolve("HEAD") is not None
+        return self._facts["commits"]
 
     def is_shallow(self) -> bool:
         """True for a shallow clone (its history is cut off, so it cannot be shown)."""
-        return str(self.run("rev-parse", "--is-shallow-repository")).strip() == "true"
+        if "shallow" not in self._facts:
+            out = str(self.run("rev-parse", "--is-shallow-repository")).strip()
+            self._facts["shallow"] = out == "true"
+        return self._facts["shallow"]
 
     def resolve(self, rev: str) -> str | None:
         """The full commit id ``rev`` names, or ``None`` if it names no commit."""

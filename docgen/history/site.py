@@ -11,7 +11,6 @@ from __future__ import annotations
 from typing import Any
 
 from docgen.cachekey import cache_key
-from docgen.history.approval import approval_check
 from docgen.history.cache import ResultsCache
 from docgen.history.figures import cached_figure, response_overlay, trend_plot, trend_series
 from docgen.history.pages import diff_context, diff_name, history_context
@@ -41,9 +40,8 @@ def provide(site: ProviderInput) -> Contribution:
         repo_rel = rel if root in ("", ".") else f"{root.rstrip('/')}/{rel}"
         title = entry.design.header.title if entry.design is not None else rel
         history = design_history(repo, repo_rel, root, solver)
-        approval = approval_check(repo, repo_rel, root) if repo is not None and \
-            history["available"] else None
-        _design_pages(site, contribution, rel, title or rel, history, approval, solver.cache)
+        _design_pages(site, contribution, rel, title or rel, history,
+                      history["changed_since_approval"], solver.cache)
     return contribution
 
 

@@ -10,6 +10,7 @@ from __future__ import annotations
 
 from collections.abc import Callable, Mapping
 from dataclasses import dataclass
+from functools import lru_cache
 from pathlib import Path
 from typing import Any
 
@@ -69,7 +70,7 @@ class Tree:
             from docgen.record import load_texts
 
             decoded = {p: data.decode("utf-8", "replace") for p, data in self.texts.items()}
-            self._record = load_texts(self.designs_root, decoded)
+            self._record = load_texts(self.designs_root, decoded, read=read_page)
         return self._record
 
     def design_paths(self) -> list[str]:
@@ -103,6 +104,25 @@ class Tree:
         key = cache_key(self.texts[path], [self.texts[p] for p in uses])
         return Snapshot(self.label, self.rev, path, design, record.library, uses, key,
                         diagnostics, source)
+
+
+@lru_cache(maxsize=4096)
+def _read_page(text: str, path: str) -> Design | DocgenError:
+    from docgen.reader import read_text
+
+    try:
+        return read_text(text, path)
+    except DocgenError as exc:
+        return exc
+
+
+def read_page(text: str, path: str) -> Design:
+    """:func:`docgen.reader.read_text`, remembered: a page's text repeats across revisions and
+    a Design is immutable, so each distinct (text, path) is read once per process."""
+    found = _read_page(text, path)
+    if isinstance(found, DocgenError):
+        raise type(found)(found.diagnostics)  # a fresh error each time (no growing traceback)
+    return found
 
 
 def _has_circuit(text: str) -> bool:

@@ -10,6 +10,7 @@ from __future__ import annotations
 
 from typing import Any
 
+from docgen.history.approval import approval_info, find_approval
 from docgen.history.git import Repo
 from docgen.history.headline import headline_figures, verdict_counts, verdicts
 from docgen.history.revisions import Revision, list_revisions, unavailable_reason
@@ -26,7 +27,9 @@ def design_history(repo: Repo | None, rel: str, designs_root: str, solver: Revis
     :returns: ``{"path", "available", "unavailable", "rows": [...], "diffs": [...],
         "results": [...]}``; each row is a revision with ``status``, ``approved``, ``figures``,
         ``verdicts``, ``passed``, ``total`` and ``errors``; ``diffs[i]`` compares row ``i + 1``
-        (older) with row ``i``; ``results[i]`` is row ``i``'s results dict.
+        (older) with row ``i``; ``results[i]`` is row ``i``'s results dict;
+        ``changed_since_approval`` is the review-integrity flag (see
+        :mod:`docgen.history.approval`) or ``None``.
     """
     reason = unavailable_reason(repo)
     if reason is not None or repo is None:
@@ -39,17 +42,19 @@ def design_history(repo: Repo | None, rel: str, designs_root: str, solver: Revis
     results = [solver.results(s) for s in snaps]
     rows = [revision_row(r, s, res) for r, s, res in zip(listing.revisions, snaps, results,
                                                           strict=True)]
+    approval = find_approval(current, snaps)
+    flag = approval_info(approval, current) if approval is not None else None
     diffs = []
     if with_diffs:
         for i in range(len(snaps) - 1):
             diffs.append(revision_diff(snaps[i + 1], snaps[i], results[i + 1], results[i]))
     return {"path": rel, "available": True, "unavailable": None, "rows": rows, "diffs": diffs,
-            "results": results}
+            "results": results, "changed_since_approval": flag}
 
 
 def _unavailable(rel: str, reason: str | None) -> Json:
     return {"path": rel, "available": False, "unavailable": reason, "rows": [], "diffs": [],
-            "results": []}
+            "results": [], "changed_since_approval": None}
 
 
 def revision_row(revision: Revision, snap: Snapshot, results: Json) -> Json:
