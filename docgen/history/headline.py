@@ -8,7 +8,7 @@ the design's own requirements, so a table across revisions compares like with li
 from __future__ import annotations
 
 from collections.abc import Mapping
-from functools import lru_cache
+from functools import cache
 from typing import Any
 
 from docgen.metric_values import evaluate
@@ -21,7 +21,7 @@ HEADLINE: tuple[str, ...] = (
 )
 
 
-@lru_cache(maxsize=None)
+@cache
 def _metric(text: str) -> Metric:
     return parse(text)
 
