@@ -20,6 +20,9 @@ changes.
 
 Model lookup order: the design's own ``models`` block, then ``library`` (the record supplies
 the team's library pages and the built-in generic models in it).
+
+``variations(circuit)`` lists every value with a tolerance or production range (part, name,
+nominal, low, high) for the spread analysis.
 """
 
 from __future__ import annotations
@@ -116,6 +119,46 @@ class Circuit:
         """An error diagnostic at ``span`` in the design file, with its source line."""
         line = self.lines[span.line - 1] if 0 < span.line <= len(self.lines) else None
         return Diagnostic(self.path, span, "error", message, hint, line)
+
+
+@dataclass(frozen=True, slots=True)
+class Variation:
+    """One value that varies from board to board: a part tolerance or a model's range.
+
+    :param part: the part name.
+    :param name: the key in ``Device.values`` (``value`` for the primary value).
+    :param nominal: the design value.
+    :param low: the smallest value within tolerance or range.
+    :param high: the largest.
+    :param origin: ``tolerance`` (the part's ± percentage) or ``model range`` (the model's
+        production spread in brackets).
+    """
+
+    part: str
+    name: str
+    nominal: float
+    low: float
+    high: float
+    origin: str
+
+
+def variations(circuit: Circuit) -> tuple[Variation, ...]:
+    """Every value of ``circuit`` that has a tolerance or a production range, in part order.
+
+    The spread analysis draws samples within these bounds and passes them to the solver as
+    overrides keyed ``(part, name)``; the bench load never varies.
+    """
+    out: list[Variation] = []
+    for d in circuit.devices:
+        if d.bench:
+            continue
+        if d.tolerance:
+            nominal = d.values["value"]
+            ends = sorted((nominal * (1 - d.tolerance), nominal * (1 + d.tolerance)))
+            out.append(Variation(d.name, "value", nominal, ends[0], ends[1], "tolerance"))
+        for name, (low, high) in d.spreads.items():
+            out.append(Variation(d.name, name, d.values[name], low, high, "model range"))
+    return tuple(out)
 
 
 def elaborate(design: Design, library: Mapping[str, ModelDef]) -> Circuit:

@@ -85,3 +85,23 @@ def test_starting_from_the_nominal_point_gives_the_same_answer_in_fewer_iteratio
     assert warm.converged.all()
     np.testing.assert_allclose(warm.voltages, cold.voltages, rtol=1e-9, atol=1e-12)
     assert warm.dc.iterations.max() < cold.dc.iterations.min()
+
+
+def test_variations_list_tolerances_and_model_ranges():
+    from docgen.elaborate import variations
+
+    circuit = make_circuit("""
+VC  supply   15 V        : vcc gnd
+R1  resistor 47k 1%      : vcc b
+R2  resistor 10k         : b gnd
+RC  resistor 4k7 5%      : vcc c
+Q1  npn      generic-npn : c=c b=b e=gnd
+""", bench="output c\nload 10k")
+    found = {(v.part, v.name): v for v in variations(circuit)}
+    assert found[("R1", "value")].low == pytest.approx(46.53e3)
+    assert found[("RC", "value")].high == pytest.approx(4.935e3)
+    assert ("R2", "value") not in found
+    # generic-npn: beta=150 (100..300), early_voltage=100 (60..150) (docgen/builtin/generic.md)
+    assert (found[("Q1", "beta")].low, found[("Q1", "beta")].high) == (100.0, 300.0)
+    assert found[("Q1", "early_voltage")].origin == "model range"
+    assert not any(v.part.startswith("bench") for v in found.values())
