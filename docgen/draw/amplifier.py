@@ -29,7 +29,8 @@ TOP_LEVEL = 5.5
 BOTTOM_LEVEL = -5.5
 GAP = 1.0
 STACK_OFFSET = 2.5  # a part above/below a pin: its centre this far from the pin
-CHAIN_STEP = 3.5  # between the centres of two parts in series in one column
+MAX_CHAIN = 3  # rail parts a chain head may lead to
+CHAIN_STEP = 4.0  # between the centres of two parts in series in one column
 FEEDBACK_CLEARANCE = 2.5  # room for rail symbols between the stage and a feedback part
 OPAMP_FEEDBACK_Y = 3.0
 RAIL_ORDER = {"up": 2, "ground": 1, "down": 0}
@@ -94,7 +95,7 @@ class _Builder:
         self.middle: list[Part] = []
         self.feedback: list[Part] = []
         self.rail_parts: list[Part] = []
-        self.chain: dict[str, Part] = {}  # a chain head -> the rail part below/above it
+        self.chain: dict[str, list[Part]] = {}  # a chain head -> the rail parts beyond it
         self.totems: dict[str, Totem] = {}  # upper device -> its push-pull pair
         self.placed: list[Placed] = []
 
@@ -125,25 +126,24 @@ class _Builder:
         self.middle = self.hints.order(self.middle)
 
     def _make_chain(self, part: Part) -> None:
-        """A part whose far net leads only to one rail part (RE1 then CE to ground) stands
-        in the rail part's column, the two in series."""
+        """A part whose far net leads only to rail parts on one side (RE1, then RE2 and CE
+        to ground) stands in their column, in series with them."""
         if part.kind in classify.ACTIVE:
             return
         for near, far in (part.nets, part.nets[::-1]):
             if far in (self.design.bench.output, classify.input_net(self.design)):
                 continue  # the input and output nodes stay in the signal row
-            users = [p for p in self.design.parts if far in p.nets]
-            if len(users) != 2:
-                continue
-            other = users[0] if users[1] is part else users[1]
-            if "signal" in (part.kind, other.kind):  # the source keeps its place at the input
-                continue
+            others = [p for p in self.design.parts if far in p.nets and p is not part]
+            if not 1 <= len(others) <= MAX_CHAIN or near in self.rails or any(
+                    p.kind == "signal" for p in [part, *others]):
+                continue  # the source keeps its place at the input
             for side in (self.upper, self.lower):
-                if other in side.get(far, []) and near not in self.rails:
-                    side[far].remove(other)
+                if all(p in side.get(far, []) for p in others):
+                    for p in others:
+                        side[far].remove(p)
                     side.setdefault(near, []).append(part)
                     self.middle.remove(part)
-                    self.chain[part.name] = other
+                    self.chain[part.name] = others
                     return
 
     def _is_feedback(self, part: Part) -> bool:
@@ -156,7 +156,7 @@ class _Builder:
             return "mirrored" if self.hints.mirrored(part.name) else "normal"
         p, n = part.nets
         if part.name in self.chain:  # its chained partner's net goes away from the middle
-            far = next(x for x in self.chain[part.name].nets if x in (p, n))
+            far = next(x for x in self.chain[part.name][0].nets if x in (p, n))
             chosen = "down" if (far == n) == (row == "lower") else "up"
         elif row == "upper":
             chosen = "down" if p in self.rails else "up"
@@ -204,12 +204,15 @@ class _Builder:
         return out
 
     def column(self, part: Part, row: str, x: float, y: float) -> list[Placed]:
-        """A side part at (x, y) and, if it heads a chain, its partner beyond it."""
+        """A side part at (x, y) and, if it heads a chain, the parts beyond it: the first
+        straight on, the others side by side with it."""
         out = [place(part, self.orient(part, row), (x, y))]
-        partner = self.chain.get(part.name)
-        if partner is not None:
-            offset = CHAIN_STEP if row == "upper" else -CHAIN_STEP
-            out.append(place(partner, self.orient(partner, row), (x, y + offset)))
+        offset = CHAIN_STEP if row == "upper" else -CHAIN_STEP
+        for partner in self.chain.get(part.name, []):
+            item = place(partner, self.orient(partner, row), (x, y + offset))
+            if len(out) > 1:
+                item = shift(item, max(extent(p)[1] for p in out[1:]) + GAP - extent(item)[0])
+            out.append(item)
         return out
 
     def find_totems(self) -> None:
