@@ -210,3 +210,27 @@ def test_shallow_clone_says_history_is_not_available(scripted, tmp_path):
     assert not history["available"] and "shallow clone" in history["unavailable"]
     assert history["rows"] == [] and solver.solved == 0
     assert changed_since_approval(Repo(clone), clone / RENAMED) is None
+
+
+def test_internal_error_in_one_revision_is_reported_not_cached(scripted, tmp_path):
+    """A crash inside the pipeline (a docgen bug) marks that revision and is solved again next
+    time; it does not lose the rest of the history."""
+    script, ids, repo, _, _ = scripted
+    calls = []
+
+    def crash_on_first_cut(design, library):
+        calls.append(design.path)
+        if design.part("RC").value_text == "4k7":
+            raise ZeroDivisionError("boom")
+        return run(design, library)
+
+    solver = RevisionSolver(ResultsCache(tmp_path / "cache"), crash_on_first_cut)
+    history = design_history(repo, RENAMED, "designs", solver)
+    first = history["rows"][-1]
+    assert first["sha"] == ids["add"] and first["errors"] == 1
+    assert "internal error while solving this revision: ZeroDivisionError" in \
+        history["results"][-1]["errors"][0]["message"]
+    assert all(row["errors"] == 0 for row in history["rows"][:-1])
+    again = RevisionSolver(ResultsCache(tmp_path / "cache"), crash_on_first_cut)
+    design_history(repo, RENAMED, "designs", again)
+    assert again.solved == 1  # only the revision that crashed is tried again

@@ -188,22 +188,30 @@ class RevisionSolver:
         cached = self.cache.get(snap.key)
         if cached is not None:
             return cached
-        results = self._solve(snap.design, snap.library)
-        self.cache.put(snap.key, results)
+        results, trustworthy = self._solve(snap.design, snap.library)
+        if trustworthy:
+            self.cache.put(snap.key, results)
         return results
 
-    def _solve(self, design: Design, library: Mapping[str, ModelDef]) -> dict[str, Any]:
+    def _solve(self, design: Design, library: Mapping[str, ModelDef]
+               ) -> tuple[dict[str, Any], bool]:
+        """Results and whether they may be cached (not after an internal error)."""
         from docgen.pipeline import design_summary, run
         from docgen.units import round_results
 
         self.solved += 1
+        base = {"schema": "docgen-results/1", "design": design_summary(design)}
         try:
-            results = (self.solve or run)(design, library)
+            return round_results((self.solve or run)(design, library)), True
         except DocgenError as exc:  # the circuit cannot be solved as drawn at this revision
-            results = {"schema": "docgen-results/1", "design": design_summary(design),
-                       "errors": [{"analysis": "elaborate", **d.to_json()}
-                                  for d in exc.diagnostics]}
-        return round_results(results)
+            errors = [{"analysis": "elaborate", **d.to_json()} for d in exc.diagnostics]
+            return {**base, "errors": errors}, True
+        except Exception as exc:  # noqa: BLE001 - one old revision must not lose the history
+            message = (f"internal error while solving this revision: {type(exc).__name__}: "
+                       f"{exc} (please report it)")
+            errors = [{"analysis": "solve", "path": design.path, "line": 1, "col": 1,
+                       "severity": "error", "message": message, "hint": None}]
+            return {**base, "errors": errors}, False
 
 
 def unreadable_results(snap: Snapshot) -> dict[str, Any]:
