@@ -37,6 +37,7 @@ def _cli_build(cwd: Path, out: str, jobs: int, seed: str) -> subprocess.Complete
                           cwd=cwd, env=env, capture_output=True, text=True, timeout=300)
 
 
+@pytest.mark.slow
 def test_builds_in_separate_processes_are_byte_identical(tmp_path: Path) -> None:
     copy_fixtures(tmp_path / "designs")
     one = _cli_build(tmp_path, "site-one", 1, "1")
