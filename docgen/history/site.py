@@ -16,7 +16,6 @@ from docgen.history.figures import cached_figure, response_overlay, trend_plot, 
 from docgen.history.pages import diff_context, diff_name, history_context
 from docgen.history.snapshot import RevisionSolver, open_repo
 from docgen.history.timeline import design_history
-from docgen.site.build import default_cache_dir
 from docgen.site.pages import Link
 from docgen.site.paths import files_dir, relative_url
 from docgen.site.providers import Contribution, ProviderInput
@@ -27,9 +26,7 @@ Json = dict[str, Any]
 def provide(site: ProviderInput) -> Contribution:
     """History and diff pages for every design in the site."""
     repo, root = open_repo(site.record.root)
-    # The build hands over ``None`` both for its default folder and for --no-cache; history
-    # always keeps its cache (revisions never change), in the build's default place.
-    solver = RevisionSolver(ResultsCache(site.cache_dir or default_cache_dir(site.record.root)))
+    solver = RevisionSolver(ResultsCache(site.cache_dir))  # None (--no-cache): memory only
     contribution = Contribution()
     for rel in site.designs:
         entry = site.record.entries[rel]

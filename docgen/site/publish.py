@@ -211,7 +211,11 @@ def _run_providers(view: RecordView, designs: list[str], bundles: dict[str, dict
                    site: SiteContext, render_page: Any, options: Any,
                    diagnostics: list[Diagnostic]) -> Contribution:
     total = Contribution()
-    cache = options.cache_dir if options.cache_dir not in (None, False) else None
+    cache = options.cache_dir
+    if cache is None:  # None asks for the build's default folder; False turns caching off
+        from docgen.site.build import default_cache_dir
+
+        cache = default_cache_dir(options.designs_dir)
     given = ProviderInput(view, designs, dict(site.pages), bundles, render_page,
                           Path(cache) if cache else None, options.jobs or 1)
     for provide in load_providers(options.providers):
