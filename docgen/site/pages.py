@@ -61,20 +61,29 @@ def prose(entry: PageEntry, page: str, site: SiteContext, live: Any,
                         live=live, display_path=entry.path, heading_shift=heading_shift)
 
 
+def _param_value(value: float, unit: str) -> str:
+    """A model parameter in engineering notation; ``1/V`` takes no prefix (``0.01 1/V``)."""
+    return f"{value:g} {unit}" if unit.startswith("1/") else format_eng(value, unit)
+
+
 def models_table(models: tuple[ModelDef, ...] | list[ModelDef]) -> dict[str, Any] | None:
     """The models a page defines, one row per model, parameters in SI."""
     if not models:
         return None
+    from docgen.params import MODEL_KINDS
+
     rows = []
     for model in models:
+        specs = MODEL_KINDS.get(model.kind, {})
         params = []
         for name, p in model.params.items():
-            text = f"{name}={p.value:g}"
+            unit = specs[name].unit if name in specs else ""
+            text = f"{name} {_param_value(p.value, unit)}"
             if p.low is not None and p.high is not None:
-                text += f" ({p.low:g}..{p.high:g})"
+                text += f" ({_param_value(p.low, unit)} .. {_param_value(p.high, unit)})"
             params.append(text)
-        rows.append([model.name, model.kind, " ".join(params)])
-    return {"caption": "Parameters in SI units; a range is the production spread",
+        rows.append([model.name, model.kind, " · ".join(params)])
+    return {"caption": "Parameters as given; a range in brackets is the production spread",
             "columns": ["model", "kind", "parameters"], "rows": rows,
             "numeric": [False, False, False]}
 
