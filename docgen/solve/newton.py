@@ -24,11 +24,12 @@ the last iteration (the equation that would not settle).
 
 from __future__ import annotations
 
+from collections.abc import Callable
 from dataclasses import dataclass, field
 
 import numpy as np
 
-from docgen.solve.mna import Problem, assemble
+from docgen.solve.mna import Problem, assemble, assemble_linear
 
 Array = np.ndarray
 
@@ -134,8 +135,13 @@ def newton(
     options: SolveOptions,
     source_scale: Array | float = 1.0,
     node_gmin: Array | float = 0.0,
+    augment: Callable[[Array, Array], tuple[Array, Array]] | None = None,
 ) -> _Attempt:
-    """Newton–Raphson iterations from ``x0`` until each sample converges or the cap is hit."""
+    """Newton–Raphson iterations from ``x0`` until each sample converges or the cap is hit.
+
+    :param augment: adds terms to each assembled ``(matrix, rhs)`` before the solve (the
+        transient's companion stamps of capacitors and inductors, and its stimulus).
+    """
     samples = problem.samples
     x, state = x0.copy(), {k: v.copy() for k, v in state0.items()}
     done = np.zeros(samples, dtype=bool)
@@ -144,11 +150,15 @@ def newton(
     singular = np.zeros(samples, dtype=bool)
     node_count = problem.layout.node_count
     span = voltage_span(problem)
+    linear = assemble_linear(problem, source_scale, node_gmin)
     absolute = np.where(np.arange(problem.layout.size) < node_count,
                         options.voltage_tolerance, options.current_tolerance)
     for _ in range(options.max_iterations):
         active = ~done
-        matrix, rhs, new_state, limited = assemble(problem, x, state, source_scale, node_gmin)
+        matrix, rhs, new_state, limited = assemble(problem, x, state, source_scale, node_gmin,
+                                                   linear=linear)
+        if augment is not None:
+            matrix, rhs = augment(matrix, rhs)
         x_new, bad = _solve_batch(matrix, rhs)
         broken = bad | ~np.all(np.isfinite(x_new), axis=1)
         x_new = np.where(broken[:, None], x, x_new)
