@@ -3,8 +3,11 @@
 Public API::
 
     problem = build_problem(circuit, overrides=None, temperature_c=None)
-    matrix, rhs, state, limited = assemble(problem, x, state, source_scale=1.0, node_gmin=0.0)
-    evaluate(problem, device_name, x) -> terminal currents (S, T)
+    matrix, rhs, state, limited = assemble(problem, x, state, source_scale=1.0, node_gmin=0.0,
+                                           limiting=True, linear=None)
+    linear = assemble_linear(problem, source_scale=1.0, node_gmin=0.0)  # reused per iteration
+    device_currents(problem, x) -> {part: (S, T) currents into each terminal}
+    resistance_at(values, temperature_c)
 
 Unknowns ``x`` are shaped ``(S, M)``: the node voltages of the circuit's nets (in
 ``circuit.nets`` order), then internal nodes (a diode's junction behind its series resistance,
