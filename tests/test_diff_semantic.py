@@ -172,3 +172,15 @@ def test_relative_change_edge_cases():
     assert relative_change(None, 1.0) is None
     assert relative_change(0.0, 1.0) is None
     assert relative_change(-2.0, -1.0) == pytest.approx(0.5)  # (−1 − (−2))/|−2|
+
+
+def test_history_table_shows_the_same_headline_as_the_index():
+    """The history table's columns are the index's headline figures, in the same order, and
+    every headline name is a metric of the vocabulary (docgen/metrics.py)."""
+    from docgen.history.headline import HEADLINE, TABLE
+    from docgen.metrics import parse
+    from docgen.site.pages import HEADLINE as INDEX
+
+    assert list(TABLE) == [label for label, *_ in INDEX]
+    for text in HEADLINE:
+        parse(text)

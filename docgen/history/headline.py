@@ -14,11 +14,14 @@ from typing import Any
 from docgen.metric_values import evaluate
 from docgen.metrics import Metric, parse
 
-#: Figures every design page leads with, in the metric vocabulary (docgen/metrics.py).
-HEADLINE: tuple[str, ...] = (
-    "midband gain", "low corner", "high corner", "input impedance", "output impedance",
-    "supply current",
+#: The figures the site's index shows for each design (``docgen/site/pages.py``), in the metric
+#: vocabulary (docgen/metrics.py): the columns of the history table.
+TABLE: tuple[str, ...] = (
+    "midband gain", "low corner", "high corner", "input impedance", "input noise",
+    "output swing", "THD",
 )
+#: Every figure diffs and trends compare: the table's, plus two a reviewer asks about next.
+HEADLINE: tuple[str, ...] = (*TABLE, "output impedance", "supply current")
 
 
 @cache

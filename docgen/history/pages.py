@@ -6,7 +6,7 @@ from __future__ import annotations
 from typing import Any
 
 from docgen.history.describe import percent, value_text
-from docgen.history.headline import HEADLINE
+from docgen.history.headline import TABLE
 
 Json = dict[str, Any]
 
@@ -21,7 +21,7 @@ def history_context(history: Json, *, title: str, design_href: str,
                     approval: Json | None) -> Json:
     """The history page: one row per revision, headline columns, verdicts, diff links."""
     rows = history["rows"]
-    columns = [m for m in HEADLINE if any(f["metric"] == m for r in rows for f in r["figures"])]
+    columns = [m for m in TABLE if any(f["metric"] == m for r in rows for f in r["figures"])]
     table = []
     for row, href in zip(rows, diff_hrefs + [None] * (len(rows) - len(diff_hrefs)),
                          strict=False):
