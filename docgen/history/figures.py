@@ -36,7 +36,8 @@ def trend_series(rows: Sequence[Json], limit: int = 6) -> list[tuple[str, str, l
     """``(metric, unit, values oldest → newest)`` for headline figures that change across rows.
 
     ``rows`` are history rows newest first; a figure missing at a revision is ``None``.  Only
-    figures with at least two values are kept, at most ``limit`` of them (the headline first).
+    figures with at least two values are kept, at most ``limit`` of them: those that changed
+    first, each group in headline order.
     """
     order: list[tuple[str, str]] = []
     for row in rows:
@@ -51,7 +52,9 @@ def trend_series(rows: Sequence[Json], limit: int = 6) -> list[tuple[str, str, l
             values.append(found[0] if found else None)
         if sum(v is not None for v in values) >= 2:
             series.append((metric, unit, values))
-    return series[:limit]
+    # figures that moved come first: a flat line says little when panels are limited
+    moved = [s for s in series if len({v for v in s[2] if v is not None}) > 1]
+    return (moved + [s for s in series if s not in moved])[:limit]
 
 
 def trend_plot(labels: Sequence[str], series: Sequence[tuple[str, str, Sequence[float | None]]]
