@@ -95,6 +95,14 @@ def test_push_pull_pair_stands_as_a_totem(drawn: dict) -> None:
     assert pins[("D1", "anode")][1] > pins[("D2", "cathode")][1]
 
 
+def test_differential_pair_bases_face_outwards_over_the_tail(drawn: dict) -> None:
+    pins = _geometry(drawn["differential_pair"][1]).pins
+    assert pins[("Q1", "b")][0] < pins[("Q1", "c")][0] < pins[("Q2", "c")][0] < pins[("Q2", "b")][0]
+    # the tail source stands below the emitters, between the two devices
+    assert pins[("IT", "p")][1] < pins[("Q1", "e")][1]
+    assert pins[("Q1", "c")][0] < pins[("IT", "p")][0] < pins[("Q2", "c")][0]
+
+
 def test_coupling_capacitors_lie_horizontal(drawn: dict) -> None:
     for name in ("common_emitter", "emitter_follower", "jfet_buffer", "pnp_stage"):
         pins = _geometry(drawn[name][1]).pins

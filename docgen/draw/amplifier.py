@@ -14,14 +14,13 @@ part on a collector/drain or emitter/source stands directly above or below that 
 
 from __future__ import annotations
 
-import math
-
 from docgen.design import Design, Part
 from docgen.draw import classify
 from docgen.draw.hints import Hints
-from docgen.draw.placement import LABEL_GAP, Placed, Placement
-from docgen.draw.route import PITCH
-from docgen.draw.totem import DEVICE_Y, INPUT, N_TYPE, STRING_Y, Totem, find_totems
+from docgen.draw.pair import Pair, find_pairs
+from docgen.draw.parts import extent, place, shift
+from docgen.draw.placement import Placed, Placement
+from docgen.draw.totem import Totem, find_totems
 
 UPPER_Y = 4.0
 LOWER_Y = -4.0
@@ -34,52 +33,6 @@ CHAIN_STEP = 4.0  # between the centres of two parts in series in one column
 FEEDBACK_CLEARANCE = 2.5  # room for rail symbols between the stage and a feedback part
 OPAMP_FEEDBACK_Y = 3.0
 RAIL_ORDER = {"up": 2, "ground": 1, "down": 0}
-
-
-def label(placed: Placed) -> Placed:
-    """Give a placed part its label text and a spot beside its body."""
-    part = placed.part
-    value = classify.value_text(part)
-    x, y = placed.origin
-    body = placed.body()
-    if part.kind == "opamp":
-        placed.label = f"{part.name}\n{value}".strip()
-        placed.label_at, placed.label_align = (x + 1.8, y - 0.35), ("left", "top")
-    elif part.kind in classify.ACTIVE:
-        placed.label = f"{part.name}\n{value}".strip()
-        gap = LABEL_GAP + 0.2
-        if placed.orientation == "mirrored":
-            placed.label_at, placed.label_align = (body[0] - gap, y), ("right", "center")
-        else:
-            placed.label_at, placed.label_align = (body[2] + gap, y), ("left", "center")
-    elif placed.orientation in ("left", "right"):
-        placed.label = f"{part.name} {value}".strip()
-        placed.label_at, placed.label_align = ((body[0] + body[2]) / 2, body[3] + 0.15), (
-            "center", "bottom")
-    else:
-        placed.label = f"{part.name}\n{value}".strip()
-        placed.label_at, placed.label_align = (body[2] + LABEL_GAP, (body[1] + body[3]) / 2), (
-            "left", "center")
-    return placed
-
-
-def place(part: Part, orientation: str, origin: tuple[float, float]) -> Placed:
-    """A labelled part at ``origin`` (moved up/right onto the wiring grid)."""
-    snapped = (math.ceil(origin[0] / PITCH - 1e-9) * PITCH,
-               math.ceil(origin[1] / PITCH - 1e-9) * PITCH)
-    return label(Placed(part, orientation, snapped))
-
-
-def extent(placed: Placed) -> tuple[float, float]:
-    """Leftmost and rightmost x of a part with its label and pins."""
-    boxes = [placed.keepout(), placed.label_box()]
-    xs = [p[0] for p, _ in placed.pins().values()]
-    return (min(min(b[0] for b in boxes), *xs), max(max(b[2] for b in boxes), *xs))
-
-
-def shift(placed: Placed, dx: float, dy: float = 0.0) -> Placed:
-    """The same part moved by (dx, dy)."""
-    return place(placed.part, placed.orientation, (placed.origin[0] + dx, placed.origin[1] + dy))
 
 
 class _Builder:
@@ -96,7 +49,8 @@ class _Builder:
         self.feedback: list[Part] = []
         self.rail_parts: list[Part] = []
         self.chain: dict[str, list[Part]] = {}  # a chain head -> the rail parts beyond it
-        self.totems: dict[str, Totem] = {}  # upper device -> its push-pull pair
+        self.groups: dict[str, Totem | Pair] = {}  # lead device -> its group
+        self.taken: set[str] = set()  # parts placed by a group
         self.placed: list[Placed] = []
 
     # ---- roles ---------------------------------------------------------------------------
@@ -174,10 +128,8 @@ class _Builder:
     # ---- placing rows --------------------------------------------------------------------
 
     def input_nets(self, part: Part) -> set[str]:
-        if part.name in self.totems:  # the bias string and both bases take the signal
-            totem = self.totems[part.name]
-            return {n for p in totem.bias_parts for n in p.nets} | {
-                d.net(INPUT[d.kind]) for d in (totem.upper, totem.lower)}
+        if part.name in self.groups:
+            return self.groups[part.name].input_nets()
         if part.kind in classify.ACTIVE:
             return {n for t, n in part.terminals if t in classify.INPUT_TERMINALS}
         ranked = sorted(part.nets, key=lambda n: self.ranks.get(n, 0))
@@ -185,8 +137,8 @@ class _Builder:
 
     def item_nets(self, part: Part) -> set[str]:
         """The nets of a signal-row item (a push-pull pair counts all its parts)."""
-        if part.name in self.totems:
-            return {n for p in self.totems[part.name].parts for n in p.nets}
+        if part.name in self.groups:
+            return {n for p in self.groups[part.name].parts for n in p.nets}
         return set(part.nets)
 
     def stacks(self, part: Part, placed: Placed, taken: set[str]) -> list[Placed]:
@@ -215,54 +167,32 @@ class _Builder:
             out.append(item)
         return out
 
-    def find_totems(self) -> None:
-        """Push-pull pairs: the upper device stays in the signal row and stands for all."""
+    def find_groups(self) -> None:
+        """Push-pull and differential pairs: the first device stays in the signal row and
+        stands for the whole group."""
         pool = [p for p in self.middle + self.feedback if p.kind not in classify.ACTIVE]
         devices = [p for p in self.middle if p.kind in classify.ACTIVE]
-        for found in find_totems(devices, pool):
-            self.totems[found.upper.name] = found
-            taken = {p.name for p in found.parts if p is not found.upper}
-            self.middle = [p for p in self.middle if p.name not in taken]
-            self.feedback = [p for p in self.feedback if p.name not in taken]
-            if found.bias_parts:  # the parts from the rails to the two bases
-                top = found.upper.net(INPUT[found.upper.kind])
-                bottom = found.lower.net(INPUT[found.lower.kind])
-                for side, row, node in ((self.upper, "upper", top), (self.lower, "lower", bottom)):
-                    if side.get(node):
-                        found.rail_parts.append((side[node].pop(0), row))
+        for found in [*find_totems(devices, pool), *find_pairs(devices, pool, self)]:
+            if any(p.name in self.taken for p in found.parts):
+                continue
+            self.groups[found.lead.name] = found
+            self.taken.update(p.name for p in found.parts)
+            others = {p.name for p in found.parts if p is not found.lead}
+            self.middle = [p for p in self.middle if p.name not in others]
+            self.feedback = [p for p in self.feedback if p.name not in others]
+            found.claim(self)
 
-    def totem_item(self, totem: Totem, cursor: float, stacked: set[str]) -> float:
-        """Place a push-pull pair and its bias string as one item of the signal row."""
-        group: list[Placed] = []
-        net = totem.upper.net(INPUT[totem.upper.kind])
-        heights = {1: STRING_Y[1:2], 2: STRING_Y[::2], 3: STRING_Y}.get(len(totem.bias_parts), ())
-        for part, y in zip(totem.bias_parts, heights, strict=True):
-            group.append(place(part, "down" if part.nets[0] == net else "up", (0.0, y)))
-            net = part.nets[1] if part.nets[0] == net else part.nets[0]
-        for part, row in totem.rail_parts:
-            y = DEVICE_Y + STACK_OFFSET if row == "upper" else -DEVICE_Y - STACK_OFFSET
-            group.extend(self.column(part, row, 0.0, y))
-        x = (max(extent(p)[1] for p in group) + GAP + 1.0) if group else 0.0
-        devices = [place(totem.upper, self.orient(totem.upper, "middle"), (x, DEVICE_Y)),
-                   place(totem.lower, self.orient(totem.lower, "middle"), (x, -DEVICE_Y))]
-        group.extend(devices)
-        net = totem.upper.net(N_TYPE[totem.upper.kind])
-        for part, y in zip(totem.emitter_parts, (2.0, -2.0), strict=False):
-            group.append(place(part, "down" if part.nets[0] == net else "up", (x, y)))
-            net = part.nets[1] if part.nets[0] == net else part.nets[0]
-        inner = {n for p in totem.parts for n in p.nets if p not in (totem.upper, totem.lower)}
-        inner.add(totem.upper.net(N_TYPE[totem.upper.kind]))
-        stacked.update(inner)  # nothing stands between the two devices
-        for device in devices:
-            group.extend(self.stacks(device.part, device, stacked))
-        left = min(extent(p)[0] for p in group)
-        right = max(extent(p)[1] for p in group)
-        self.placed.extend(shift(p, cursor - left) for p in group)
+    def group_item(self, group: Totem | Pair, cursor: float, stacked: set[str]) -> float:
+        """Place a group (push-pull pair, differential pair) as one item of the signal row."""
+        items = group.arrange(self, stacked)
+        left = min(extent(p)[0] for p in items)
+        right = max(extent(p)[1] for p in items)
+        self.placed.extend(shift(p, cursor - left) for p in items)
         return cursor + right - left + GAP
 
     def run(self) -> Placement:
         self.sort_roles()
-        self.find_totems()
+        self.find_groups()
         slots_before: dict[str, list[str]] = {}
         slots_after: dict[str, list[str]] = {}
         nets_with_parts = [n for n in self.design.nets if self.upper.get(n) or self.lower.get(n)]
@@ -279,8 +209,8 @@ class _Builder:
         for part in self.middle:
             for net in slots_before.get(part.name, []):
                 cursor = self.slot(net, cursor, placed_slots)
-            if part.name in self.totems:
-                cursor = self.totem_item(self.totems[part.name], cursor, stacked)
+            if part.name in self.groups:
+                cursor = self.group_item(self.groups[part.name], cursor, stacked)
             else:
                 cursor = self.middle_part(part, cursor, stacked)
             for net in slots_after.get(part.name, []):

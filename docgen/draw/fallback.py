@@ -11,8 +11,8 @@ from __future__ import annotations
 
 from docgen.design import Design
 from docgen.draw import classify
-from docgen.draw.amplifier import extent, place, shift
 from docgen.draw.hints import Hints
+from docgen.draw.parts import extent, place, shift
 from docgen.draw.placement import Placed, Placement
 
 COLUMN_GAP = 2.5

@@ -9,8 +9,14 @@ own column to the left, with the parts from the rails to the two bases above and
 from __future__ import annotations
 
 from dataclasses import dataclass, field
+from typing import Any
 
 from docgen.design import Part
+from docgen.draw.parts import extent, place
+from docgen.draw.placement import Placed
+
+STACK_OFFSET = 2.5  # a rail part's centre this far beyond the base it feeds
+GAP = 1.0
 
 N_TYPE = {"npn": "e", "njfet": "s", "nmos": "s"}
 P_TYPE = {"pnp": "e", "pjfet": "s", "pmos": "s"}
@@ -32,7 +38,55 @@ class Totem:
     @property
     def parts(self) -> list[Part]:
         """Every part the totem places."""
-        return [self.upper, self.lower, *self.emitter_parts, *self.bias_parts]
+        return [self.upper, self.lower, *self.emitter_parts, *self.bias_parts,
+                *(p for p, _ in self.rail_parts)]
+
+    @property
+    def lead(self) -> Part:
+        """The device that stands for the group in the signal row."""
+        return self.upper
+
+    def input_nets(self) -> set[str]:
+        """The bias string and both bases take the signal."""
+        return {n for p in self.bias_parts for n in p.nets} | {
+            d.net(INPUT[d.kind]) for d in (self.upper, self.lower)}
+
+    def claim(self, builder: Any) -> None:
+        """Take the parts from the rails to the two bases (they stand above and below the
+        bias string)."""
+        if not self.bias_parts:
+            return
+        top = self.upper.net(INPUT[self.upper.kind])
+        bottom = self.lower.net(INPUT[self.lower.kind])
+        for side, row, node in ((builder.upper, "upper", top), (builder.lower, "lower", bottom)):
+            if side.get(node):
+                self.rail_parts.append((side[node].pop(0), row))
+
+    def arrange(self, builder: Any, stacked: set[str]) -> list[Placed]:
+        """The group's parts placed around the origin (the builder moves them into line)."""
+        group: list[Placed] = []
+        net = self.upper.net(INPUT[self.upper.kind])
+        heights = {1: STRING_Y[1:2], 2: STRING_Y[::2], 3: STRING_Y}.get(len(self.bias_parts), ())
+        for part, y in zip(self.bias_parts, heights, strict=True):
+            group.append(place(part, "down" if part.nets[0] == net else "up", (0.0, y)))
+            net = part.nets[1] if part.nets[0] == net else part.nets[0]
+        for part, row in self.rail_parts:
+            y = DEVICE_Y + STACK_OFFSET if row == "upper" else -DEVICE_Y - STACK_OFFSET
+            group.extend(builder.column(part, row, 0.0, y))
+        x = (max(extent(p)[1] for p in group) + GAP + 1.0) if group else 0.0
+        devices = [place(self.upper, builder.orient(self.upper, "middle"), (x, DEVICE_Y)),
+                   place(self.lower, builder.orient(self.lower, "middle"), (x, -DEVICE_Y))]
+        group.extend(devices)
+        net = self.upper.net(N_TYPE[self.upper.kind])
+        for part, y in zip(self.emitter_parts, (2.0, -2.0), strict=False):
+            group.append(place(part, "down" if part.nets[0] == net else "up", (x, y)))
+            net = part.nets[1] if part.nets[0] == net else part.nets[0]
+        inner = {n for p in self.emitter_parts + self.bias_parts for n in p.nets}
+        inner.add(self.upper.net(N_TYPE[self.upper.kind]))
+        stacked.update(inner)  # nothing stands between the two devices
+        for device in devices:
+            group.extend(builder.stacks(device.part, device, stacked))
+        return group
 
 
 def _series(start: str, goal: str, pool: list[Part], limit: int) -> list[Part] | None:
