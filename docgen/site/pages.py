@@ -46,9 +46,15 @@ class SiteContext:
     design_links: dict[str, list[Link]] = field(default_factory=dict)
 
 
-def diag_json(diagnostics: list[Diagnostic] | list[dict[str, Any]]) -> list[dict[str, Any]]:
-    """Diagnostics as plain dicts for templates."""
-    return [d.to_json() if isinstance(d, Diagnostic) else d for d in diagnostics]
+def diag_json(diagnostics: list[Any]) -> list[dict[str, Any]]:
+    """Diagnostics as plain dicts for templates, each shown once (two analyses may report the
+    same missing input)."""
+    out: dict[tuple, dict[str, Any]] = {}
+    for item in diagnostics:
+        data = item.to_json() if isinstance(item, Diagnostic) else item
+        key = (data.get("path"), data.get("line"), data.get("col"), data.get("message"))
+        out.setdefault(key, data)
+    return list(out.values())
 
 
 def prose(entry: PageEntry, page: str, site: SiteContext, live: Any,
@@ -168,8 +174,8 @@ def design_context(entry: PageEntry, bundle: dict[str, Any], page: str,
                          "href": relative_url(page, link.target)}
                         for link in site.design_links.get(entry.source_rel, [])],
         "cautions": verdicts.caution_items(results),
-        "diagnostics": diag_json(entry.diagnostics) + list(bundle.get("errors") or [])
-        + list((results or {}).get("errors") or []),
+        "diagnostics": diag_json([*entry.diagnostics, *(bundle.get("errors") or []),
+                                  *((results or {}).get("errors") or [])]),
         "contents": contents,
         "schematic": (relative_url(page, files_dir(page) + "/schematic.svg")
                       if bundle.get("schematic") else None),

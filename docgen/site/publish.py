@@ -199,7 +199,7 @@ def _problems(view: RecordView, designs: list[str], bundles: dict[str, dict[str,
             continue  # left out of this site by the status filter
         if found:
             page = site.pages.get(rel)
-            out.append({"path": entry.path, "diagnostics": found,
+            out.append({"path": entry.path, "diagnostics": page_contexts.diag_json(found),
                         "href": page if page else None})
     record_wide = [d.to_json() for d in view.diagnostics if d.severity == "error"]
     if record_wide:
