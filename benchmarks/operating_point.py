@@ -1,74 +1,53 @@
-"""Speed of the batched operating point: one circuit, S samples solved at once.
+"""Speed of the batched operating point: one design, S samples solved at once.
 
-Run: ``python benchmarks/operating_point.py``.  Prints a table (never run by CI).  The circuit
-mixes every device kind (op-amp, npn, pnp, JFET, MOSFET, diode) so the figure reflects a
-realistic stage; the samples vary resistor values, β and temperature as a tolerance run would.
+Run: ``python benchmarks/operating_point.py [DESIGN]`` (default: the demo common-emitter stage,
+``designs/hydrophone-preamp.md``).  Prints a table; never run by CI.  Every value with a
+tolerance or production range is drawn uniformly within it and the temperature within
+−20..60 °C, as a tolerance run would; each batch is solved from 0 V and again from the nominal
+operating point.
 """
 
 from __future__ import annotations
 
+import sys
 import time
 
 import numpy as np
 
-from docgen.elaborate import elaborate
-from docgen.reader import read_text
-from docgen.record import builtin_page
+from docgen.elaborate import elaborate, variations
+from docgen.record import load_record
 from docgen.solve.operating_point import solve_op
 
-PAGE = """---
-title: benchmark stage
----
-
-```circuit
-VP  supply    12 V                  : vp gnd
-VN  supply    12 V                  : gnd vn
-VS  signal    1 mV 1 kHz offset=0.2 : in gnd
-U1  opamp     generic-opamp         : in+=in in-=fb out=out v+=vp v-=vn
-RF  resistor  9k                    : out fb
-RG  resistor  1k                    : fb gnd
-R1  resistor  10k                   : vp c
-Q1  npn       generic-npn           : c=c b=out e=e
-RE  resistor  4k7                   : e gnd
-Q2  pnp       generic-pnp           : c=vn b=e e=pe
-R2  resistor  10k                   : vp pe
-J1  njfet     generic-njfet         : d=vp g=gnd s=js
-RS  resistor  1k                    : js gnd
-M1  pmos      generic-pmos          : d=md g=gnd s=vp
-RD  resistor  1k                    : md gnd
-D1  diode     generic-diode         : vp dk
-RK  resistor  2k2                   : dk gnd
-```
-"""
+DEFAULT = "designs/hydrophone-preamp.md"
 
 
-def main() -> None:
-    """Time S = 1 … 5000 and print samples, seconds and microseconds per sample."""
-    library = {m.name: m for m in builtin_page().models}
-    circuit = elaborate(read_text(PAGE, "benchmark.md"), library)
+def _row(label: int | str, samples: int, seconds: float, solution, note: str = "") -> str:
+    return (f"{label!s:>8}  {seconds:>8.3f}  {1e6 * seconds / samples:>10.1f}  "
+            f"{int(solution.converged.sum()):>9}  {int(solution.dc.iterations.max()):>10}{note}")
+
+
+def main(path: str = DEFAULT) -> None:
+    """Time S = 1 … 10 000 and print samples, seconds, µs per sample and iterations."""
+    record = load_record(path, ["designs"])
+    design = record.designs[0]
+    circuit = elaborate(design, record.models_for(design))
     nominal = solve_op(circuit)
+    varied = variations(circuit)
+    print(f"{path}: {len(circuit.devices)} parts, {nominal.problem.layout.size} unknowns, "
+          f"{len(varied)} varied values")
     print(f"{'samples':>8}  {'seconds':>8}  {'µs/sample':>10}  {'converged':>9}  iterations")
-    for samples in (1, 10, 100, 1000, 5000):
+    for samples in (1, 10, 100, 1000, 10000):
         rng = np.random.default_rng(1)
-        overrides = {
-            ("RF", "value"): 9e3 * rng.uniform(0.99, 1.01, samples),
-            ("RE", "value"): 4.7e3 * rng.uniform(0.99, 1.01, samples),
-            ("Q1", "beta"): rng.uniform(100, 300, samples),
-            ("J1", "drain_saturation_current"): rng.uniform(3e-3, 12e-3, samples),
-        }
+        overrides = {(v.part, v.name): rng.uniform(v.low, v.high, samples) for v in varied}
         temperature = rng.uniform(-20, 60, samples)
         start = time.perf_counter()
-        solution = solve_op(circuit, overrides, temperature)
-        seconds = time.perf_counter() - start
-        print(f"{samples:>8}  {seconds:>8.3f}  {1e6 * seconds / samples:>10.1f}  "
-              f"{int(solution.converged.sum()):>9}  {int(solution.dc.iterations.max())}")
+        cold = solve_op(circuit, overrides, temperature)
+        print(_row(samples, samples, time.perf_counter() - start, cold))
         start = time.perf_counter()
         warm = solve_op(circuit, overrides, temperature, start=nominal)
-        seconds = time.perf_counter() - start
-        print(f"{'':>8}  {seconds:>8.3f}  {1e6 * seconds / samples:>10.1f}  "
-              f"{int(warm.converged.sum()):>9}  {int(warm.dc.iterations.max())}"
-              "  (started from the nominal point)")
+        print(_row("", samples, time.perf_counter() - start, warm,
+                   "  (from the nominal point)"))
 
 
 if __name__ == "__main__":
-    main()
+    main(*sys.argv[1:2])

@@ -9,6 +9,18 @@ from docgen.solve.operating_point import OpSolution, require_converged, solve_op
 
 _BUILTINS = {m.name: m for m in builtin_page().models}
 
+#: A voltage-controlled current sink (op-amp driving a MOSFET with a 10 Ω sense resistor into a
+#: load from 100 V): plain Newton from 0 V does not settle on it at 470 Ω; stepping does.
+SINK = """
+VH  supply   100 V         : vh gnd
+VP  supply   15 V          : vp gnd
+VR  supply   1 V           : ref gnd
+U1  opamp    generic-opamp : in+=ref in-=s out=g v+=vp v-=gnd
+M1  nmos     generic-nmos  : d=d g=g s=s
+RS  resistor 10            : s gnd
+RL  resistor 470           : vh d
+"""
+
 
 def design_text(circuit: str, models: str = "", bench: str = "") -> str:
     """A minimal design page with the given blocks."""

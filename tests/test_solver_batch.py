@@ -9,7 +9,7 @@ from __future__ import annotations
 
 import numpy as np
 import pytest
-from solver_helpers import make_circuit
+from solver_helpers import SINK, make_circuit
 
 from docgen.solve.operating_point import part_quantities, solve_op
 
@@ -47,15 +47,7 @@ def test_batch_equals_single_solves():
 def test_batch_mixing_easy_and_hard_samples_matches_single_solves():
     # The current sink needs stepping at 470 Ω but not at 100 Ω: converged samples are frozen
     # while the others go on, so every sample ends where it would alone.
-    circuit = make_circuit("""
-VH  supply   100 V         : vh gnd
-VP  supply   15 V          : vp gnd
-VR  supply   1 V           : ref gnd
-U1  opamp    generic-opamp : in+=ref in-=s out=g v+=vp v-=gnd
-M1  nmos     generic-nmos  : d=d g=g s=s
-RS  resistor 10            : s gnd
-RL  resistor 470           : vh d
-""")
+    circuit = make_circuit(SINK)
     loads = np.array([100.0, 470.0, 220.0, 470.0])
     batch = solve_op(circuit, {("RL", "value"): loads})
     assert batch.converged.all()

@@ -9,7 +9,7 @@ from __future__ import annotations
 
 import numpy as np
 import pytest
-from solver_helpers import make_circuit
+from solver_helpers import SINK, make_circuit
 
 from docgen.diagnostics import AnalysisError, CircuitError
 from docgen.elaborate import elaborate
@@ -144,15 +144,7 @@ Q2  npn     generic-pnp  : c=a b=b e=gnd
 
 
 def test_non_convergence_names_the_part_and_what_was_tried():
-    circuit = make_circuit("""
-VH  supply   100 V         : vh gnd
-VP  supply   15 V          : vp gnd
-VR  supply   1 V           : ref gnd
-U1  opamp    generic-opamp : in+=ref in-=s out=g v+=vp v-=gnd
-M1  nmos     generic-nmos  : d=d g=g s=s
-RS  resistor 10            : s gnd
-RL  resistor 470           : vh d
-""")
+    circuit = make_circuit(SINK)
     solution = solve_op(circuit, options=SolveOptions(gmin_stepping=False,
                                                       source_stepping=False))
     with pytest.raises(AnalysisError) as caught:

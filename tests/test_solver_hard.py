@@ -10,7 +10,7 @@ from __future__ import annotations
 
 import numpy as np
 import pytest
-from solver_helpers import make_circuit, solve, v
+from solver_helpers import SINK, make_circuit, solve, v
 
 from docgen.solve.devices import thermal_voltage
 from docgen.solve.newton import SolveOptions
@@ -101,15 +101,6 @@ D2  diode    dd   : gnd d
     assert s.currents["D2"][0, 0] == pytest.approx(-1e-14, abs=1e-11)
 
 
-SINK = """
-VH  supply   100 V         : vh gnd
-VP  supply   15 V          : vp gnd
-VR  supply   1 V           : ref gnd
-U1  opamp    generic-opamp : in+=ref in-=s out=g v+=vp v-=gnd
-M1  nmos     generic-nmos  : d=d g=g s=s
-RS  resistor 10            : s gnd
-RL  resistor 470           : vh d
-"""
 
 
 def test_plain_newton_fails_on_a_current_sink_and_stepping_rescues_it():
