@@ -234,3 +234,18 @@ def test_internal_error_in_one_revision_is_reported_not_cached(scripted, tmp_pat
     again = RevisionSolver(ResultsCache(tmp_path / "cache"), crash_on_first_cut)
     design_history(repo, RENAMED, "designs", again)
     assert again.solved == 1  # only the revision that crashed is tried again
+
+
+def test_parallel_prefetch_gives_the_same_results(scripted, tmp_path):
+    """Solving new revisions in worker processes (a first site build) stores exactly what the
+    one-at-a-time path stores, and each distinct content is solved once."""
+    from docgen.history.timeline import revision_snapshots
+
+    _, _, repo, history, _ = scripted
+    solver = RevisionSolver(ResultsCache(tmp_path / "cache"))
+    _, _, snaps = revision_snapshots(repo, RENAMED, "designs")
+    solver.prefetch(snaps, jobs=2)
+    assert solver.solved == 6  # seven revisions, one pure rename
+    again = design_history(repo, RENAMED, "designs", solver)
+    assert solver.solved == 6
+    assert again["results"] == history["results"]

@@ -15,7 +15,7 @@ from docgen.history.cache import ResultsCache
 from docgen.history.figures import cached_figure, response_overlay, trend_plot, trend_series
 from docgen.history.pages import diff_context, diff_name, history_context
 from docgen.history.snapshot import RevisionSolver, open_repo
-from docgen.history.timeline import design_history
+from docgen.history.timeline import design_history, revision_snapshots
 from docgen.site.pages import Link
 from docgen.site.paths import files_dir, relative_url
 from docgen.site.providers import Contribution, ProviderInput
@@ -28,18 +28,26 @@ def provide(site: ProviderInput) -> Contribution:
     repo, root = open_repo(site.record.root)
     solver = RevisionSolver(ResultsCache(site.cache_dir))  # None (--no-cache): memory only
     contribution = Contribution()
+    paths = {rel: rel if root in ("", ".") else f"{root.rstrip('/')}/{rel}" for rel in site.designs}
+    _seed(site, solver)
+    snaps = [s for rel in site.designs for s in revision_snapshots(repo, paths[rel], root)[2]]
+    solver.prefetch(snaps, site.jobs)  # a first build solves new revisions in parallel
     for rel in site.designs:
         entry = site.record.entries[rel]
-        bundle = site.bundles.get(rel) or {}
-        if entry.design is not None and bundle.get("results"):
-            key = cache_key(entry.source, entry.library_bytes)
-            solver.cache.put(key, bundle["results"], store=False)
-        repo_rel = rel if root in ("", ".") else f"{root.rstrip('/')}/{rel}"
         title = entry.design.header.title if entry.design is not None else rel
-        history = design_history(repo, repo_rel, root, solver)
+        history = design_history(repo, paths[rel], root, solver)
         _design_pages(site, contribution, rel, title or rel, history,
                       history["changed_since_approval"], solver.cache)
     return contribution
+
+
+def _seed(site: ProviderInput, solver: RevisionSolver) -> None:
+    """The build's own results of the designs as they are now: no need to solve them again."""
+    for rel in site.designs:
+        entry, bundle = site.record.entries[rel], site.bundles.get(rel) or {}
+        if entry.design is not None and bundle.get("results"):
+            key = cache_key(entry.source, entry.library_bytes)
+            solver.cache.put(key, bundle["results"], store=False)
 
 
 def _design_pages(site: ProviderInput, out: Contribution, rel: str, title: str, history: Json,

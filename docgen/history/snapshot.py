@@ -8,7 +8,7 @@ exactly what the build would have published then.  Results are cached by content
 
 from __future__ import annotations
 
-from collections.abc import Callable, Mapping
+from collections.abc import Callable, Iterable, Mapping
 from dataclasses import dataclass
 from functools import lru_cache
 from pathlib import Path
@@ -47,6 +47,7 @@ class Snapshot:
     key: str | None
     diagnostics: tuple[Diagnostic, ...]
     source: str
+    library_texts: tuple[tuple[str, str], ...] = ()  # (path, text) of each page in ``uses``
 
 
 class Tree:
@@ -103,7 +104,7 @@ class Tree:
         uses = tuple(record.uses.get(path, ()))
         key = cache_key(self.texts[path], [self.texts[p] for p in uses])
         return Snapshot(self.label, self.rev, path, design, record.library, uses, key,
-                        diagnostics, source)
+                        diagnostics, source, tuple((p, self._text(p)) for p in uses))
 
 
 @lru_cache(maxsize=4096)
@@ -193,6 +194,32 @@ class RevisionSolver:
             self.cache.put(snap.key, results)
         return results
 
+    def prefetch(self, snaps: Iterable[Snapshot], jobs: int = 1) -> None:
+        """Solve every snapshot whose content is not cached yet, ``jobs`` processes at a time.
+
+        Only worth it for many new revisions (a first build); with one job, a custom ``solve``
+        or fewer than two to do, the revisions are solved here in turn.
+        """
+        todo: dict[str, Snapshot] = {}
+        for snap in snaps:
+            if snap.design is not None and snap.key is not None and snap.key not in todo \
+                    and self.cache.get(snap.key) is None:
+                todo[snap.key] = snap
+        if jobs <= 1 or len(todo) < 2 or self.solve is not None:
+            for snap in todo.values():
+                self.results(snap)
+            return
+        from concurrent.futures import ProcessPoolExecutor
+
+        with ProcessPoolExecutor(max_workers=min(jobs, len(todo))) as pool:
+            futures = {key: pool.submit(solve_texts, snap.path, snap.source, snap.library_texts)
+                       for key, snap in sorted(todo.items())}
+            for key, future in futures.items():
+                results, trustworthy = future.result()
+                self.solved += 1
+                if trustworthy:
+                    self.cache.put(key, results)
+
     def _solve(self, design: Design, library: Mapping[str, ModelDef]
                ) -> tuple[dict[str, Any], bool]:
         """Results and whether they may be cached (not after an internal error)."""
@@ -212,6 +239,19 @@ class RevisionSolver:
             errors = [{"analysis": "solve", "path": design.path, "line": 1, "col": 1,
                        "severity": "error", "message": message, "hint": None}]
             return {**base, "errors": errors}, False
+
+
+def solve_texts(path: str, source: str, library_texts: tuple[tuple[str, str], ...]
+                ) -> tuple[dict[str, Any], bool]:
+    """Read and solve one revision from its texts (in a worker process); see
+    :meth:`RevisionSolver.prefetch`.  The pages it uses resolve its models exactly as the whole
+    folder would (a model comes from the page that owns it, else the built-ins)."""
+    from docgen.record import load_texts
+
+    record = load_texts("", {path: source, **dict(library_texts)}, read=read_page)
+    solver = RevisionSolver(ResultsCache(None))
+    solver.solved -= 1  # counted by the caller
+    return solver._solve(record.page(path), record.library)
 
 
 def unreadable_results(snap: Snapshot) -> dict[str, Any]:

@@ -13,7 +13,7 @@ from typing import Any
 from docgen.history.approval import approval_info, find_approval
 from docgen.history.git import Repo
 from docgen.history.headline import headline_figures, verdict_counts, verdicts
-from docgen.history.revisions import Revision, list_revisions, unavailable_reason
+from docgen.history.revisions import Listing, Revision, list_revisions, unavailable_reason
 from docgen.history.semantic import diff_designs, text_diff
 from docgen.history.snapshot import RevisionSolver, Snapshot, snapshot
 
@@ -31,17 +31,13 @@ def design_history(repo: Repo | None, rel: str, designs_root: str, solver: Revis
         ``changed_since_approval`` is the review-integrity flag (see
         :mod:`docgen.history.approval`) or ``None``.
     """
-    reason = unavailable_reason(repo)
-    if reason is not None or repo is None:
-        return _unavailable(rel, reason)
-    current = snapshot(repo, None, rel, designs_root)
-    listing = list_revisions(repo, rel, current.uses)
+    current, listing, snaps = revision_snapshots(repo, rel, designs_root)
     if not listing.available:
         return _unavailable(rel, listing.unavailable)
-    snaps = [snapshot(repo, r.commit.sha, r.path, designs_root) for r in listing.revisions]
     results = [solver.results(s) for s in snaps]
     rows = [revision_row(r, s, res) for r, s, res in zip(listing.revisions, snaps, results,
                                                           strict=True)]
+    assert current is not None
     approval = find_approval(current, snaps)
     flag = approval_info(approval, current) if approval is not None else None
     diffs = []
@@ -50,6 +46,18 @@ def design_history(repo: Repo | None, rel: str, designs_root: str, solver: Revis
             diffs.append(revision_diff(snaps[i + 1], snaps[i], results[i + 1], results[i]))
     return {"path": rel, "available": True, "unavailable": None, "rows": rows, "diffs": diffs,
             "results": results, "changed_since_approval": flag}
+
+
+def revision_snapshots(repo: Repo | None, rel: str, designs_root: str
+                       ) -> tuple[Snapshot | None, Listing, list[Snapshot]]:
+    """The design now (work tree), its revisions, and a snapshot of each (nothing solved)."""
+    reason = unavailable_reason(repo)
+    if reason is not None or repo is None:
+        return None, Listing(rel, unavailable=reason), []
+    current = snapshot(repo, None, rel, designs_root)
+    listing = list_revisions(repo, rel, current.uses)
+    snaps = [snapshot(repo, r.commit.sha, r.path, designs_root) for r in listing.revisions]
+    return current, listing, snaps
 
 
 def _unavailable(rel: str, reason: str | None) -> Json:
