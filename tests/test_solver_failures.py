@@ -98,7 +98,7 @@ I1  current   1m    : vcc x
 I2  current   2m    : x gnd
 """)
     (d,) = error.diagnostics
-    assert "'x'" in d.message and "current source I1" in d.message
+    assert "'x'" in d.message and "current sources I1 and I2" in d.message
     assert d.line == FIRST_LINE + 2
 
 

@@ -174,29 +174,40 @@ def _words(items: list[str]) -> str:
     return ", ".join(items[:-1]) + " and " + items[-1]
 
 
+def _sources(sources: list[Device]) -> str:
+    names = list(dict.fromkeys(d.name for d in sources))
+    if len(names) == 1:
+        return f"current source {names[0]} drives"
+    return f"current sources {_words(names)} drive"
+
+
 def _floating_message(circuit: Circuit, nets: list[str]) -> Diagnostic:
     members = set(nets)
     touching = [(d, t) for d in circuit.devices for t, n in zip(d.terminals, d.nets, strict=True)
                 if n in members]
-    feeders = [(d, t) for d, t in touching if t in CURRENT_TERMINALS.get(d.kind, ())]
-    label = "net " + ", ".join(f"'{n}'" for n in nets) if len(nets) == 1 else \
-        "nets " + ", ".join(f"'{n}'" for n in nets)
+    one = len(nets) == 1
+    label = ("net " if one else "nets ") + _words([f"'{n}'" for n in nets])
+    has, it, connects = ("has", "it", "connects") if one else ("have", "them", "connect")
     blocked = [(d, t) for d, t in touching if d.kind in _ROLE
                and not any(t in pair for pair in CONDUCTING.get(d.kind, []))]
+    sources = [d for d, t in touching if d.kind == "current"]
+    others = [(d, t) for d, t in blocked if d.kind != "current"]
     through = _words(list(dict.fromkeys(_ROLE[d.kind].format(name=d.name, terminal=t)
-                                        for d, t in blocked))) or "nothing else"
-    sources = [d for d, _ in feeders if d.kind == "current"]
+                                        for d, t in (others if sources else blocked))))
     if sources:
         first = sources[0]
+        also = f" (otherwise {'it' if one else 'they'} {connects} only through {through})" \
+            if through else ""
         return circuit.diagnostic(
             first.span,
-            f"{label} has no DC path to gnd, yet current source {first.name} drives current "
-            f"into it (it connects only through {through}); that current has nowhere to go",
+            f"{label} {has} no DC path to gnd, yet {_sources(sources)} current "
+            f"into {it}{also}; that current has nowhere to go",
             "give the current a path: a resistor or transistor from the net, or remove the "
             "source in series")
     first = touching[0][0] if touching else circuit.devices[0]
     return circuit.diagnostic(
         first.span,
-        f"{label} has no DC path to gnd: it connects only through {through} "
-        "(capacitors are open at DC), so its DC voltage is undefined",
+        f"{label} {has} no DC path to gnd: {'it' if one else 'they'} {connects} only through "
+        f"{through or 'nothing else'} (capacitors are open at DC), so "
+        f"{'its' if one else 'their'} DC voltage is undefined",
         "add a resistor that sets its DC voltage (a bias resistor to gnd or to a supply)")
