@@ -276,14 +276,29 @@ def part_quantities(solution: OpSolution, name: str) -> dict[str, Array]:
 # ------------------------------------------------------------------ the op section
 
 
-def _plain(value: Any) -> Any:
-    """A JSON-ready scalar: floats stay floats, non-finite become ``None``."""
+#: Voltages, currents and powers smaller than this are rounding residue of the solve (the
+#: solver's own tolerance is 1 nV / 1 pA), published as exactly 0.
+RESIDUE = 1e-15
+
+
+def _plain(value: Any, residue: bool = False) -> Any:
+    """A JSON-ready scalar: floats stay floats, non-finite become ``None``.
+
+    With ``residue``, magnitudes below :data:`RESIDUE` become 0 (a net that carries no current
+    reads 0 V, not 3e-18 V).
+    """
     if isinstance(value, np.bool_ | bool):
         return bool(value)
     if isinstance(value, np.str_ | str):
         return str(value)
     number = float(value) + 0.0  # + 0.0 turns −0.0 into 0.0
+    if residue and abs(number) < RESIDUE:
+        return 0.0
     return number if np.isfinite(number) else None
+
+
+def _figure(key: str, value: Any) -> Any:
+    return _plain(value, residue=key.endswith(("_v", "_a", "_w")))
 
 
 def op_section(solution: OpSolution, sample: int = 0) -> dict[str, Any]:
@@ -294,7 +309,8 @@ def op_section(solution: OpSolution, sample: int = 0) -> dict[str, Any]:
     for d in circuit.devices:
         if d.bench:
             continue
-        figures = {k: _plain(v[sample]) for k, v in part_quantities(solution, d.name).items()}
+        figures = {k: _figure(k, v[sample])
+                   for k, v in part_quantities(solution, d.name).items()}
         parts[d.name] = figures
         if d.kind == "supply":
             supplies[d.name] = {"current_a": _plain(-figures["current_a"]),
@@ -304,10 +320,11 @@ def op_section(solution: OpSolution, sample: int = 0) -> dict[str, Any]:
     if loads:
         figures = part_quantities(solution, loads[0].name)
         load = {"resistance_ohm": loads[0].values["value"],
-                **{k: _plain(v[sample]) for k, v in figures.items()}}
+                **{k: _figure(k, v[sample]) for k, v in figures.items()}}
     return {
         "temperature_c": _plain(solution.temperature_c[sample]),
-        "nets": {net: _plain(solution.voltage(net)[sample]) for net in circuit.nets},
+        "nets": {net: _plain(solution.voltage(net)[sample], residue=True)
+                 for net in circuit.nets},
         "parts": parts,
         "supplies": supplies,
         "load": load,
