@@ -199,8 +199,12 @@ class _Builder:
         for net in nets_with_parts:
             takers = [p for p in self.middle if net in self.input_nets(p)]
             touchers = [p for p in self.middle if net in self.item_nets(p)]
-            if takers:
+            facing_right = takers and takers[0].name in self.groups and net in self.groups[
+                takers[0].name].right_inputs()
+            if takers and not facing_right:
                 slots_before.setdefault(takers[0].name, []).append(net)
+            elif facing_right:
+                slots_after.setdefault(takers[0].name, []).append(net)
             elif touchers:
                 slots_after.setdefault(touchers[-1].name, []).append(net)
         placed_slots: set[str] = set()

@@ -19,7 +19,7 @@ LOW = {"npn": "e", "pnp": "e", "njfet": "s", "pjfet": "s", "nmos": "s", "pmos": 
 HIGH = {"npn": "c", "pnp": "c", "njfet": "d", "pjfet": "d", "nmos": "d", "pmos": "d"}
 INPUT = {"npn": "b", "pnp": "b", "njfet": "g", "pjfet": "g", "nmos": "g", "pmos": "g"}
 EMITTER_Y = -4.0  # centre of the emitter parts
-TAIL_Y = -9.0  # centre of the tail's source
+TAIL_Y = -8.0  # centre of the tail's source
 GAP = 1.0
 
 
@@ -50,6 +50,10 @@ class Pair:
         devices = [self.left, self.right] + ([self.source] if self.source is not None
                                              and self.source.kind in INPUT else [])
         return {d.net(INPUT[d.kind]) for d in devices}
+
+    def right_inputs(self) -> set[str]:
+        """The mirrored device's base faces right: its parts stand right of the pair."""
+        return {self.right.net(INPUT[self.right.kind])} - {self.left.net(INPUT[self.left.kind])}
 
     def claim(self, builder: Any) -> None:
         """Take a two-terminal tail source out of the builder's rail rows."""

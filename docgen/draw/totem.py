@@ -51,6 +51,10 @@ class Totem:
         return {n for p in self.bias_parts for n in p.nets} | {
             d.net(INPUT[d.kind]) for d in (self.upper, self.lower)}
 
+    def right_inputs(self) -> set[str]:
+        """Input nets reached from the right (none: the bias string is on the left)."""
+        return set()
+
     def claim(self, builder: Any) -> None:
         """Take the parts from the rails to the two bases (they stand above and below the
         bias string)."""
