@@ -44,6 +44,7 @@ class SiteContext:
     files: frozenset[str]
     last_change: dict[str, str]
     design_links: dict[str, list[Link]] = field(default_factory=dict)
+    titles: dict[str, str] = field(default_factory=dict)  # source_rel -> page title
 
 
 def diag_json(diagnostics: list[Any]) -> list[dict[str, Any]]:
@@ -153,7 +154,7 @@ def design_context(entry: PageEntry, bundle: dict[str, Any], page: str,
     if header.replaced_by:
         target = _resolve_rel(entry.source_rel, header.replaced_by)
         href = relative_url(page, site.pages[target]) if target in site.pages else None
-        replaced = {"text": header.replaced_by, "href": href}
+        replaced = {"text": site.titles.get(target, header.replaced_by), "href": href}
     sections = bundle.get("sections") or []
     present = {key for key in ("ac", "noise", "transient", "spread") if key in (results or {})}
     not_computed = [words for key, words in EXPECTED_SECTIONS

@@ -76,6 +76,8 @@ def write_site(view: RecordView, in_site: list[str], bundles: dict[str, dict[str
     root = Path(options.designs_dir)
     pages = {rel: page_path(rel) for rel in in_site}
     site = SiteContext(pages, frozenset(view.entries), local_files(root), last_changes(root))
+    site.titles = {rel: e.design.header.title for rel, e in view.entries.items()
+                   if e.design is not None and e.design.header.title}
     designs = [rel for rel in in_site if view.entries[rel].kind == "design"]
     staged = StagedSite(Path(options.out_dir))
     try:
