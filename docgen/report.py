@@ -99,6 +99,11 @@ def print_op(op: dict[str, Any], results: dict[str, Any]) -> list[str]:
     return out
 
 
+def _siemens(value: Any) -> str:
+    """A transconductance in mS (the unit designers quote gm in)."""
+    return "n/a" if value is None else format_eng(1e3 * float(value), "mS", 4)
+
+
 def _two_terminal_rows(parts: list[tuple[str, dict[str, Any]]]) -> list[str]:
     rows = [[n, eng(f.get("voltage_v"), "V"), eng(f.get("current_a"), "A"),
              eng(f.get("power_w"), "W")] for n, f in parts]
@@ -108,7 +113,7 @@ def _two_terminal_rows(parts: list[tuple[str, dict[str, Any]]]) -> list[str]:
 
 def _bipolar_rows(parts: list[tuple[str, dict[str, Any]]]) -> list[str]:
     rows = [[n, f["region"], eng(f["ic_a"], "A"), eng(f["ib_a"], "A"), eng(f["vbe_v"], "V"),
-             eng(f["vce_v"], "V"), eng(f["power_w"], "W"), eng(f["gm_s"], "S"),
+             eng(f["vce_v"], "V"), eng(f["power_w"], "W"), _siemens(f["gm_s"]),
              eng(f["rpi_ohm"], "Ω"), eng(f["ro_ohm"], "Ω")] for n, f in parts]
     return ["", "  Bipolar transistors",
             *table(["part", "region", "IC", "IB", "VBE", "VCE", "power", "gm", "rπ", "ro"],
@@ -117,7 +122,7 @@ def _bipolar_rows(parts: list[tuple[str, dict[str, Any]]]) -> list[str]:
 
 def _fet_rows(parts: list[tuple[str, dict[str, Any]]]) -> list[str]:
     rows = [[n, f["region"], eng(f["id_a"], "A"), eng(f["vgs_v"], "V"), eng(f["vds_v"], "V"),
-             eng(f["power_w"], "W"), eng(f["gm_s"], "S")] for n, f in parts]
+             eng(f["power_w"], "W"), _siemens(f["gm_s"])] for n, f in parts]
     return ["", "  Field-effect transistors",
             *table(["part", "region", "ID", "VGS", "VDS", "power", "gm"], rows)]
 
