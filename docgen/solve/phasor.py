@@ -5,7 +5,7 @@ coefficients ``C`` (capacitances, and −L in inductor branch rows), so that the
 angular frequency ω is ``G + jωC``.  Everything here broadcasts over leading axes:
 
 - ``G``, ``C``: ``(N, N)`` or ``(S, N, N)`` (``S`` Monte Carlo samples);
-- ``freq``: ``(F,)`` in Hz;
+- ``freq``: ``(F,)`` in Hz, or ``(S, F)`` (each sample at its own frequencies);
 - right-hand sides: ``(N,)`` or ``(S, N)``;
 - results: ``(F, N)`` or ``(S, F, N)``.
 
@@ -23,14 +23,19 @@ import numpy as np
 
 
 def system_matrix(G: np.ndarray, C: np.ndarray, freq: np.ndarray) -> np.ndarray:
-    """``G + j·2πf·C`` for every frequency: shape ``(..., F, N, N)``."""
+    """``G + j·2πf·C`` for every frequency: shape ``(..., F, N, N)``.
+
+    ``freq`` is ``(F,)`` shared by every sample, or ``(S, F)``: each sample at its own
+    frequencies (the spread analysis narrows each board's corner on its own grid).
+    """
     G = np.asarray(G, dtype=float)
     C = np.asarray(C, dtype=float)
     omega = 2.0 * np.pi * np.asarray(freq, dtype=float)
-    shape = np.broadcast_shapes(G.shape[:-2], C.shape[:-2]) + (len(omega),) + G.shape[-2:]
+    shape = (np.broadcast_shapes(G.shape[:-2], C.shape[:-2], omega.shape[:-1])
+             + omega.shape[-1:] + G.shape[-2:])
     matrix = np.empty(shape, dtype=complex)  # filled in place: no complex temporaries
     matrix.real[...] = G[..., None, :, :]
-    matrix.imag[...] = omega[:, None, None] * C[..., None, :, :]
+    matrix.imag[...] = omega[..., None, None] * C[..., None, :, :]
     return matrix
 
 
