@@ -19,10 +19,12 @@ Json = dict[str, Any]
 
 def cached_figure(cache: ResultsCache, name: str, payload: Any, draw: Callable[[], str | None]
                   ) -> str | None:
-    """The SVG ``draw()`` makes from ``payload``, drawn once: keyed by the payload, docgen's and
-    matplotlib's versions (so a rebuild after a commit does not even import matplotlib)."""
-    text = json.dumps([name, payload, __version__, metadata.version("matplotlib")],
-                      sort_keys=True, default=str)
+    """The SVG ``draw()`` makes from ``payload``, drawn once: keyed by the payload, docgen's code
+    and matplotlib's version (so a rebuild after a commit does not even import matplotlib)."""
+    from docgen.site.cache import code_fingerprint
+
+    text = json.dumps([name, payload, __version__, code_fingerprint(),
+                       metadata.version("matplotlib")], sort_keys=True, default=str)
     key = hashlib.sha256(text.encode("utf-8")).hexdigest()
     svg = cache.figure(key)
     if svg is None:

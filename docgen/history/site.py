@@ -10,11 +10,10 @@ from __future__ import annotations
 
 from typing import Any
 
-from docgen.cachekey import cache_key
 from docgen.history.cache import ResultsCache
 from docgen.history.figures import cached_figure, response_overlay, trend_plot, trend_series
 from docgen.history.pages import diff_context, diff_name, history_context
-from docgen.history.snapshot import RevisionSolver, open_repo
+from docgen.history.snapshot import RevisionSolver, content_key, open_repo
 from docgen.history.timeline import design_history, revision_snapshots
 from docgen.site.pages import Link
 from docgen.site.paths import files_dir, relative_url
@@ -46,7 +45,7 @@ def _seed(site: ProviderInput, solver: RevisionSolver) -> None:
     for rel in site.designs:
         entry, bundle = site.record.entries[rel], site.bundles.get(rel) or {}
         if entry.design is not None and bundle.get("results"):
-            key = cache_key(entry.source, entry.library_bytes)
+            key = content_key(entry.source, entry.library_bytes)
             solver.cache.put(key, bundle["results"], store=False)
 
 

@@ -102,7 +102,7 @@ class Tree:
         if design is None:
             return Snapshot(self.label, self.rev, path, None, {}, (), None, diagnostics, source)
         uses = tuple(record.uses.get(path, ()))
-        key = cache_key(self.texts[path], [self.texts[p] for p in uses])
+        key = content_key(self.texts[path], [self.texts[p] for p in uses])
         return Snapshot(self.label, self.rev, path, design, record.library, uses, key,
                         diagnostics, source, tuple((p, self._text(p)) for p in uses))
 
@@ -124,6 +124,15 @@ def read_page(text: str, path: str) -> Design:
     if isinstance(found, DocgenError):
         raise type(found)(found.diagnostics)  # a fresh error each time (no growing traceback)
     return found
+
+
+def content_key(design: bytes, libraries: list[bytes]) -> str:
+    """The results cache key: the design's bytes, its library pages' bytes and docgen itself
+    (its version and the fingerprint of its files, as the site build's cache uses: results made
+    by other code are never reused)."""
+    from docgen.site.cache import code_fingerprint
+
+    return cache_key(design, libraries, extra=f"history\0{code_fingerprint()}")
 
 
 def _has_circuit(text: str) -> bool:
