@@ -26,6 +26,7 @@ R2  resistor   4k8 5% 0.25 W        : b gnd
 R3  resistor   4k99 1% 0.125 W      : vcc c
 R4  resistor   5k                   : c gnd
 C1  capacitor  100n 10%             : b gnd
+R5  resistor   4k7 1% 0.125 W       : c gnd
 ```
 """
 
@@ -46,10 +47,12 @@ def design():  # noqa: ANN201
 def test_preferred_flags(design) -> None:  # noqa: ANN001
     flags = {p.name: preferred_flag(p) for p in design.parts}
     assert flags["VB"] is None  # a supply is not a stocked value
-    assert flags["R1"] == {"series": "E24", "ok": True, "nearest": "4.7 kΩ"}
-    assert flags["R2"] == {"series": "E24", "ok": False, "nearest": "4.7 kΩ"}
-    assert flags["R3"] == {"series": "E96", "ok": True, "nearest": "4.99 kΩ"}
+    assert flags["R1"] == {"series": "E24", "member": "E24", "ok": True, "nearest": "4.7 kΩ"}
+    assert flags["R2"] == {"series": "E24", "member": None, "ok": False, "nearest": "4.7 kΩ"}
+    assert flags["R3"] == {"series": "E96", "member": "E96", "ok": True, "nearest": "4.99 kΩ"}
     assert flags["R4"]["ok"] is False and flags["R4"]["nearest"] == "5.1 kΩ"  # E24: 5.1
+    # 4.7 kΩ at 1 %: not in E96, but an E24 value, stocked at 1 % too (common practice)
+    assert flags["R5"] == {"series": "E96", "member": "E24", "ok": True, "nearest": "4.75 kΩ"}
 
 
 def test_rows_flag_missing_tolerance_and_rating(design) -> None:  # noqa: ANN001
@@ -65,9 +68,10 @@ def test_rows_flag_missing_tolerance_and_rating(design) -> None:  # noqa: ANN001
 
 def test_csv_reads_back(design) -> None:  # noqa: ANN001
     table = list(csv.DictReader(io.StringIO(parts_csv(design))))
-    assert [row["part"] for row in table] == ["VB", "R1", "R2", "R3", "R4", "C1"]
+    assert [row["part"] for row in table] == ["VB", "R1", "R2", "R3", "R4", "C1", "R5"]
     r3 = table[3]
     assert float(r3["value_si"]) == pytest.approx(4990.0)
     assert (r3["tolerance_percent"], r3["rating"], r3["rating_unit"]) == ("1", "0.125", "W")
-    assert (r3["preferred_series"], r3["in_series"]) == ("E96", "yes")
+    assert (r3["preferred_series"], r3["value_in_series"]) == ("E96", "E96")
+    assert (table[2]["preferred_series"], table[2]["value_in_series"]) == ("E24", "no")
     assert table[2]["nearest_preferred"] == "4.7 kΩ"

@@ -2,7 +2,8 @@
 
 Which preferred series a part is checked against follows its tolerance, as IEC 60063 pairs
 them (from memory): 20 % → E6, 10 % → E12, 5 % → E24, 2 % → E48, 1 % → E96, tighter → E192;
-a part with no tolerance is checked against E24 (common practice for general stock).
+a part with no tolerance is checked against E24.  A value of a coarser series is accepted too
+(common practice: E24 values are stocked at 1 % as well), so only values in neither are flagged.
 """
 
 from __future__ import annotations
@@ -31,15 +32,22 @@ def series_for(tolerance: float | None) -> str:
     return "E192"
 
 
+COARSER = ("E24", "E12", "E6")
+
+
 def preferred_flag(part: Part) -> dict[str, Any] | None:
-    """For a stocked part: its series, whether the value is in it, and the nearest value."""
+    """For a stocked part: the series its tolerance calls for, the series the value belongs to
+    (that one or a coarser one; ``None`` if neither), and the nearest value of the first."""
     if part.kind not in STOCKED or not part.value or part.value <= 0:
         return None
     series = series_for(part.tolerance)
     unit = KINDS[part.kind].value_unit or ""
-    ok = eseries.is_preferred(part.value, series)
+    allowed = [series, *(s for s in COARSER if s != series and
+                         len(eseries.SERIES[s]) < len(eseries.SERIES[series]))]
+    member = next((s for s in allowed if eseries.is_preferred(part.value, s)), None)
     nearest = eseries.nearest(part.value, series)
-    return {"series": series, "ok": ok, "nearest": format_eng(nearest, unit)}
+    return {"series": series, "member": member, "ok": member is not None,
+            "nearest": format_eng(nearest, unit)}
 
 
 def _rating_unit(part: Part) -> str:
@@ -61,7 +69,9 @@ def part_rows(design: Design, cautions: list[dict[str, Any]]) -> list[dict[str, 
         flags = []
         preferred = preferred_flag(part)
         if preferred and not preferred["ok"]:
-            flags.append(f"not in {preferred['series']}; nearest {preferred['nearest']}")
+            wider = preferred["series"] in ("E48", "E96", "E192")  # E12 and E6 lie inside E24
+            named = f"{preferred['series']} or E24" if wider else preferred["series"]
+            flags.append(f"not in {named}; nearest {preferred['nearest']}")
         if part.kind in STOCKED and part.tolerance is None:
             flags.append("no tolerance given (treated as exact)")
         if spec and spec.rating_unit and part.rating is None:
@@ -73,7 +83,7 @@ def part_rows(design: Design, cautions: list[dict[str, Any]]) -> list[dict[str, 
             "written": part.value_text or "",
             "tolerance": format_eng(part.tolerance * 100, "%") if part.tolerance else "",
             "rating": format_eng(part.rating, _rating_unit(part)) if part.rating else "",
-            "series": f"{preferred['series']} ✓" if preferred and preferred["ok"] else "",
+            "series": f"{preferred['member']} ✓" if preferred and preferred["ok"] else "",
             "nets": " ".join(f"{t}={n}" if not (spec and spec.two_terminal) else n
                              for t, n in part.terminals),
             "flags": flags,
@@ -90,7 +100,7 @@ def parts_csv(design: Design) -> str:
     writer = csv.writer(buffer, lineterminator="\n")
     writer.writerow(["part", "kind", "value", "value_si", "unit", "tolerance_percent", "rating",
                      "rating_unit", "model", "connections", "preferred_series",
-                     "in_series", "nearest_preferred"])
+                     "value_in_series", "nearest_preferred"])
     for part in design.parts:
         spec = KINDS.get(part.kind)
         preferred = preferred_flag(part)
@@ -102,7 +112,7 @@ def parts_csv(design: Design) -> str:
             "" if part.rating is None else f"{part.rating:g}", _rating_unit(part),
             part.model or "", " ".join(f"{t}={n}" for t, n in part.terminals),
             preferred["series"] if preferred else "",
-            ("yes" if preferred["ok"] else "no") if preferred else "",
+            (preferred["member"] or "no") if preferred else "",
             preferred["nearest"] if preferred else "",
         ])
     return buffer.getvalue()

@@ -78,7 +78,9 @@ def _check_row(check: dict[str, Any]) -> dict[str, str]:
         margin_text += f" ({format_eng(fraction * 100, '%', 2)})"
     verdict = str(check.get("verdict") or "not computed")
     across = check.get("across") or []
-    note = check.get("reason") or ""
+    note = str(check.get("reason") or "")
+    if note.startswith("not computed: ") and verdict == "not computed":
+        note = note[len("not computed: "):]  # the verdict already says it
     if isinstance(check.get("yield"), (int, float)):
         note = f"yield {format_eng(check['yield'] * 100, '%')}" + (f"; {note}" if note else "")
     return {
