@@ -128,6 +128,7 @@ class _Where:
     lines: list[str]
 
     def span(self, needle: str) -> Span:
+        """Where ``needle`` first appears in this run's lines."""
         return _find_span(needle, self.line_map, self.lines)
 
 
