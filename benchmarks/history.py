@@ -37,7 +37,7 @@ def timed(label: str, run: Callable[[], str]) -> None:
 
 
 def all_histories(repo: Repo, root: str, designs: list[str]) -> str:
-    solver = solver_for(repo)
+    solver = solver_for(repo, root)
     rows = sum(len(design_history(repo, d, root, solver)["rows"]) for d in designs)
     return f"{len(designs)} designs, {rows} rows, {solver.solved} solved"
 

@@ -47,7 +47,8 @@ def run(args: argparse.Namespace) -> int:
         print(f"docgen diff: no such file or revision: {', '.join(missing)}", file=sys.stderr)
         return 2
     rel_paths = [_relative(repo, p) for p in paths]
-    diffs = compare(design_pairs(repo, rev_a, rev_b, designs_root, rel_paths), solver_for(repo))
+    pairs = design_pairs(repo, rev_a, rev_b, designs_root, rel_paths)
+    diffs = compare(pairs, solver_for(repo, designs_root))
     if args.json:
         print(json.dumps({"from": rev_a, "to": rev_b or "work tree", "diffs": diffs},
                          indent=2, sort_keys=True, ensure_ascii=False))

@@ -37,7 +37,7 @@ def run(args: argparse.Namespace) -> int:
             rel = repo.relative(args.path)
         except ValueError:
             repo = None  # the design is in another repository (or none)
-    solver = solver_for(repo) if repo is not None else None
+    solver = solver_for(repo, designs_root) if repo is not None else None
     if solver is None:
         history = {"path": rel, "available": False, "rows": [], "changed_since_approval": None,
                    "unavailable": "history is not available: the design is not in the same "

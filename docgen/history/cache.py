@@ -2,9 +2,10 @@
 
 Results are stored under ``.docgen-cache/history/`` (the build's cache folder), one JSON file
 per cache key (:func:`docgen.history.snapshot.content_key`: the design file's bytes, the library
-pages it uses, docgen's version and the fingerprint of its files).  Because the key is a hash of content, a file is never stale: an entry is
-either right or never looked up again.  The folder survives builds, is ignored by git (it writes
-its own ``.gitignore``) and is safe to delete at any time; the next build just solves again.
+pages it uses, docgen's version and the fingerprint of its files).  Because the key is a hash
+of content, a file is never stale: an entry is either right or never looked up again.  The
+folder survives builds, is ignored by git (it writes its own ``.gitignore``) and is safe to
+delete at any time; the next build just solves again.
 
 A folder of ``None`` keeps results in memory only (the site build with caching turned off).
 """
@@ -32,7 +33,7 @@ class ResultsCache:
 
     @classmethod
     def for_repo(cls, root: Path) -> ResultsCache:
-        """The cache of the repository whose work tree is at ``root``."""
+        """The cache beside a designs folder at the top of the work tree ``root``."""
         return cls(Path(root) / CACHE_DIR)
 
     def _file(self, kind: str, key: str) -> Path:

@@ -17,7 +17,7 @@ from typing import Any
 from docgen.cachekey import cache_key
 from docgen.design import Design, ModelDef
 from docgen.diagnostics import Diagnostic, DocgenError
-from docgen.history.cache import ResultsCache
+from docgen.history.cache import CACHE_DIR, ResultsCache
 from docgen.history.git import Repo
 
 WORK_TREE = "work tree"
@@ -286,6 +286,7 @@ def open_repo(designs: str | Path) -> tuple[Repo | None, str]:
         return repo, Path(designs).as_posix()
 
 
-def solver_for(repo: Repo) -> RevisionSolver:
-    """The solver backed by the repository's own cache folder."""
-    return RevisionSolver(ResultsCache.for_repo(repo.root))
+def solver_for(repo: Repo, designs_root: str) -> RevisionSolver:
+    """The solver backed by the cache folder ``docgen build`` uses for these designs (beside the
+    designs folder), so the terminal and the site share their results."""
+    return RevisionSolver(ResultsCache((repo.root / designs_root).parent / CACHE_DIR))
