@@ -77,6 +77,10 @@ def print_op(op: dict[str, Any], results: dict[str, Any]) -> list[str]:
     """The operating point: nets, supplies, parts by family, assumed model parameters."""
     out = heading(f"Operating point at {eng(op.get('temperature_c'), '°C')}"
                   f" (solved by {op.get('method', '?')}, {op.get('iterations', '?')} iterations)")
+    if op.get("unstable"):
+        out += ["  WARNING: this operating point is unstable: positive feedback balances here only",
+                "  on paper, and the circuit will leave it (a latch or Schmitt trigger settles in",
+                "  one of its states). The figures below describe the balance point."]
     out += table(["net", "voltage"], [[n, eng(v, "V")] for n, v in op["nets"].items()])
     if op.get("supplies"):
         out += ["", "  Supplies (delivered)"]

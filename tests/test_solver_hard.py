@@ -14,7 +14,7 @@ from solver_helpers import SINK, make_circuit, solve, v
 
 from docgen.solve.devices import thermal_voltage
 from docgen.solve.newton import SolveOptions
-from docgen.solve.operating_point import part_quantities, solve_op
+from docgen.solve.operating_point import dc_unstable, op_section, part_quantities, solve_op
 
 
 def _kcl_ok(solution, tolerance=1e-9):
@@ -127,3 +127,76 @@ DZ  diode    z     : gnd k
     # at the documented 1 mA knee current plus its exponential: a little above 5.6 V
     assert 5.6 < v(s, "k") < 5.9
     assert int(s.dc.iterations[0]) < 30
+
+
+LATCH = """
+VC  supply   5 V         : vcc gnd
+R1  resistor 1k          : vcc c1
+R2  resistor 1k          : vcc c2
+R3  resistor 10k         : c1 b2
+R4  resistor 10k         : c2 b1
+Q1  npn      generic-npn : c=c1 b=b1 e=gnd
+Q2  npn      generic-npn : c=c2 b=b2 e=gnd
+"""
+
+
+def test_a_latch_balanced_between_its_states_is_flagged_unstable():
+    # Small-signal theory: natural frequencies are eigenvalues of −C⁻¹G; if all were in the
+    # left half-plane their product would have the sign (−1)^n, so det G < 0 means a real
+    # growing mode for any positive capacitances (e.g. Chua, Desoer & Kuh, *Linear and
+    # Nonlinear Circuits*, from memory).  A symmetric latch solved from 0 V lands on its
+    # balance point, which no real latch can hold.
+    s = solve(LATCH)
+    assert v(s, "c1") == pytest.approx(v(s, "c2"), rel=1e-9)  # the symmetric balance point
+    assert bool(dc_unstable(s)[0])
+    assert op_section(s)["unstable"] is True
+
+
+def test_schmitt_trigger_balance_points_are_flagged_unstable_and_rails_are_not():
+    circuit = """
+VP  supply   12 V         : vp gnd
+VN  supply   12 V         : gnd vn
+VI  supply   {vin} V      : in gnd
+U1  opamp    ideal-ish    : in+=p in-=in out=out v+=vp v-=vn
+R1  resistor 10k          : out p
+R2  resistor 10k          : p gnd
+"""
+    models = "ideal-ish opamp open_loop_gain=1e5 output_headroom=1"
+    poised = solve(circuit.format(vin=0), models=models)
+    assert abs(v(poised, "out")) < 1e-6 and bool(dc_unstable(poised)[0])
+    # inside the hysteresis band (|vin| < 5.5 V) three points solve the equations: both rails
+    # and the balance out = 2·vin between them; whichever Newton finds, the flag must say
+    # which kind it is
+    inside = solve(circuit.format(vin=3), models=models)
+    at_balance = abs(v(inside, "out") - 6.0) < 1e-3
+    assert at_balance or abs(v(inside, "out")) == pytest.approx(11.0, abs=1e-3)
+    assert bool(dc_unstable(inside)[0]) == at_balance
+    # beyond the band only the low rail solves them: stable
+    beyond = solve(circuit.format(vin=8), models=models)
+    assert v(beyond, "out") == pytest.approx(-11.0, abs=1e-3)
+    assert not bool(dc_unstable(beyond)[0])
+
+
+@pytest.mark.parametrize("text", [
+    SINK,
+    """
+VC  supply   15 V        : vcc gnd
+R1  resistor 47k         : vcc b
+R2  resistor 10k         : b gnd
+RC  resistor 4k7         : vcc c
+RE  resistor 1k          : e gnd
+L1  inductor 1m          : c x
+RX  resistor 10k         : x gnd
+Q1  npn      generic-npn : c=c b=b e=e
+""",
+    """
+VP  supply   12 V          : vp gnd
+VN  supply   12 V          : gnd vn
+VI  supply   0.1 V         : in gnd
+RG  resistor 1k            : in m
+RF  resistor 9k            : m out
+U1  opamp    generic-opamp : in+=gnd in-=m out=out v+=vp v-=vn
+""",
+])
+def test_stable_circuits_are_not_flagged(text):
+    assert not bool(dc_unstable(solve(text))[0])

@@ -189,6 +189,24 @@ def _singular_unknown(solution: OpSolution, sample: int) -> int | None:
     return int(np.argmax(np.abs(vectors[-1])))
 
 
+def dc_unstable(solution: OpSolution) -> Array:
+    """``(S,)`` True where the operating point is certainly unstable (a positive-feedback
+    balance point, like a latch or a Schmitt trigger poised exactly between its states).
+
+    Criterion (small-signal theory): with the nodal conductance matrix G at the point and any
+    positive capacitances C, the natural frequencies are the eigenvalues of −C⁻¹G; if all lie
+    in the left half-plane their product has the sign (−1)^n, so det G > 0.  Hence det G < 0
+    means a real growing mode whatever the capacitances.  det G is read from the MNA matrix,
+    each supply, signal and inductor branch flipping its sign once.  ``False`` does not prove
+    stability: an oscillator's growing modes come in complex pairs this test cannot see (the
+    response and feedback analyses look at those).
+    """
+    matrix, _, _, _ = mna.assemble(solution.problem, solution.x, {}, limiting=False)
+    sign, _ = np.linalg.slogdet(matrix)
+    branches = sum(1 for d in solution.circuit.devices if d.kind in mna.VOLTAGE_DEFINED)
+    return (sign * (-1.0) ** branches < 0) & solution.converged
+
+
 # ------------------------------------------------------------------- per-part figures
 
 
@@ -329,6 +347,7 @@ def op_section(solution: OpSolution, sample: int = 0) -> dict[str, Any]:
         "supplies": supplies,
         "load": load,
         "assumed": {d.name: list(d.assumed) for d in circuit.devices if d.assumed},
+        "unstable": bool(dc_unstable(solution)[sample]),
         "method": str(solution.method[sample]),
         "iterations": int(solution.dc.iterations[sample]),
     }
