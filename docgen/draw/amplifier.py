@@ -31,7 +31,7 @@ STACK_OFFSET = 2.5  # a part above/below a pin: its centre this far from the pin
 MAX_CHAIN = 3  # rail parts a chain head may lead to
 CHAIN_STEP = 4.0  # between the centres of two parts in series in one column
 FEEDBACK_CLEARANCE = 2.5  # room for rail symbols between the stage and a feedback part
-OPAMP_FEEDBACK_Y = 3.0
+OPAMP_FEEDBACK_Y = 3.5
 RAIL_ORDER = {"up": 2, "ground": 1, "down": 0}
 
 
@@ -49,6 +49,7 @@ class _Builder:
         self.feedback: list[Part] = []
         self.rail_parts: list[Part] = []
         self.chain: dict[str, list[Part]] = {}  # a chain head -> the rail parts beyond it
+        self.free_partners: set[str] = set()  # chained rail parts whose symbols sit anywhere
         self.groups: dict[str, Totem | Pair] = {}  # lead device -> its group
         self.taken: set[str] = set()  # parts placed by a group
         self.placed: list[Placed] = []
@@ -99,6 +100,17 @@ class _Builder:
                     self.middle.remove(part)
                     self.chain[part.name] = others
                     return
+            ups, downs = self.upper.get(far, []), self.lower.get(far, [])
+            if all(p in ups or p in downs for p in others) and any(p in downs for p in others):
+                # a bias node (a mid-rail divider): the part hangs below its node and the
+                # divider stands beside it, its positive end marked where it stands
+                self.chain[part.name] = sorted(others, key=lambda p: p in ups)
+                for p in others:
+                    (ups if p in ups else downs).remove(p)
+                    self.free_partners.add(p.name)
+                self.lower.setdefault(near, []).append(part)
+                self.middle.remove(part)
+                return
 
     def _is_feedback(self, part: Part) -> bool:
         return classify.feeds_back(self.design, self.rails, part)
@@ -106,6 +118,10 @@ class _Builder:
     # ---- orientation ---------------------------------------------------------------------
 
     def orient(self, part: Part, row: str) -> str:
+        if part.kind == "opamp":  # in+ on top when the signal enters there
+            plus, minus = (self.ranks.get(part.net(t), classify.UNREACHED)
+                           for t in ("in+", "in-"))
+            return "flipped" if plus < minus else "normal"
         if part.kind in classify.ACTIVE:
             return "mirrored" if self.hints.mirrored(part.name) else "normal"
         p, n = part.nets
@@ -161,7 +177,8 @@ class _Builder:
         out = [place(part, self.orient(part, row), (x, y))]
         offset = CHAIN_STEP if row == "upper" else -CHAIN_STEP
         for partner in self.chain.get(part.name, []):
-            item = place(partner, self.orient(partner, row), (x, y + offset))
+            up = any(self.rails.get(n) == "up" for n in partner.nets)
+            item = place(partner, self.orient(partner, "upper" if up else row), (x, y + offset))
             if len(out) > 1:
                 item = shift(item, max(extent(p)[1] for p in out[1:]) + GAP - extent(item)[0])
             out.append(item)
@@ -230,7 +247,8 @@ class _Builder:
         return Placement(self.placed, dict(self.rails), top_level=TOP_LEVEL,
                          bottom_level=BOTTOM_LEVEL,
                          free_ports={p.part.name for p in self.placed
-                                     if p.part.kind == "opamp" or p.part in self.rail_parts})
+                                     if p.part.kind == "opamp" or p.part in self.rail_parts
+                                     or p.part.name in self.free_partners})
 
     def middle_part(self, part: Part, cursor: float, stacked: set[str]) -> float:
         item = place(part, self.orient(part, "middle"), (0.0, 0.0))
@@ -262,13 +280,20 @@ class _Builder:
                 xs.setdefault(placed.part.net(terminal), []).append(pin[0])
         for part in self.feedback:
             a, b = part.nets
-            centre = sum(sum(xs.get(n, [0.0])) / len(xs.get(n, [0.0])) for n in (a, b)) / 2
-            on_opamp = any(o.kind == "opamp" and {a, b} <= set(o.nets) for o in self.design.parts)
-            y = OPAMP_FEEDBACK_Y if on_opamp else (
+            mean = {n: sum(xs.get(n, [0.0])) / len(xs.get(n, [0.0])) for n in (a, b)}
+            centre = (mean[a] + mean[b]) / 2
+            opamps = [p for p in self.placed if p.part.kind == "opamp" and {a, b} <= set(
+                p.part.nets)]
+            y = (OPAMP_FEEDBACK_Y if opamps[0].orientation == "normal" else -OPAMP_FEEDBACK_Y
+                 ) if opamps else (
                 self._lowest() - FEEDBACK_CLEARANCE if self._on_lower_pin(a, b)
                 else self._highest() + FEEDBACK_CLEARANCE)
             step = -1.0 if y < 0 else 1.0
-            item = place(part, self.orient(part, "feedback"), (round(centre * 2) / 2, y))
+            # the end whose node lies further left goes left
+            orientation = "right" if mean[a] <= mean[b] else "left"
+            if self.hints.turned(part.name):
+                orientation = "left" if orientation == "right" else "right"
+            item = place(part, orientation, (round(centre * 2) / 2, y))
             while self._collides(item):
                 item = shift(item, 0.0, step)
             self.placed.append(item)

@@ -163,7 +163,7 @@ def _add_port(grid: Grid, ports: list[Port], net: str, start: Node, style: str,
         if not level_ok(at):
             return False
         box = _grow(symbols.port_box(style, net, point_of(at)), 0.25)
-        return all(n == at or grid.free(n) for n in nodes_in(box))
+        return all(n == at or grid.free(n, net) for n in nodes_in(box))
 
     at = grid.connect_port(net, start, style, fits)
     if at is None:

@@ -85,10 +85,10 @@ class Grid:
         if exit_node not in self.blocked and exit_node not in self.owner:
             self.reserved.setdefault(exit_node, net)
 
-    def free(self, node: Node) -> bool:
-        """True if nothing at all uses the node."""
+    def free(self, node: Node, net: str | None = None) -> bool:
+        """True if nothing uses the node (a pin exit kept for ``net`` counts as free)."""
         return (node not in self.blocked and node not in self.owner and self._inside(node)
-                and node not in self.reserved)
+                and self.reserved.get(node, net) == net)
 
     def _inside(self, node: Node) -> bool:
         i0, j0, i1, j1 = self.bounds

@@ -68,11 +68,13 @@ SHAPES: dict[str, Shape] = {
     "pmos": Shape({"s": (0, 1.5, 0, 1), "g": (-1.5, 0, -1, 0), "d": (0, -1.5, 0, -1)},
                   (-1.4, -0.8, 0.3, 0.8), (-1.4, -1.5, 0.4, 1.5)),
     "opamp": Shape({"in-": (-1.5, 0.5, -1, 0), "in+": (-1.5, -0.5, -1, 0), "out": (2.0, 0, 1, 0),
-                    "v+": (0, 1.0, 0, 1), "v-": (0, -1.0, 0, -1)},
+                    "v+": (0, 1.5, 0, 1), "v-": (0, -1.5, 0, -1)},
                    (-1.1, -1.0, 1.7, 1.0), (-1.45, -1.0, 1.95, 1.0)),
 }
 
 TWO_TERMINAL_ORIENTATIONS = ("down", "up", "right", "left")
+OPAMP_ORIENTATIONS = ("normal", "flipped")
+OPAMP_CENTRE = 0.8 * (2.5 * 3 ** 0.5 / 2) / 6  # triangle centre right of the supply pins
 MULTI_ORIENTATIONS = ("normal", "mirrored")
 
 
@@ -86,6 +88,8 @@ def rotate(point: Point, orientation: str) -> Point:
     x, y = point
     if orientation in ("down", "normal"):
         return (x, y)
+    if orientation == "flipped":
+        return (x, -y)
     if orientation == "up":
         return (-x, -y)
     if orientation == "right":
@@ -107,7 +111,11 @@ def rotate_box(box: Box, orientation: str) -> Box:
 def pins_at(kind: str, orientation: str, origin: Point) -> dict[str, tuple[Point, Point]]:
     """Terminal -> (absolute grid pin, outward direction) for a part placed at ``origin``."""
     out = {}
-    for terminal, (x, y, dx, dy) in SHAPES[kind].pins.items():
+    pins = dict(SHAPES[kind].pins)
+    if orientation == "flipped":  # an op-amp with in+ on top; supplies stay + up, − down
+        pins["in+"], pins["in-"] = pins["in-"], pins["in+"]
+        orientation = "normal"
+    for terminal, (x, y, dx, dy) in pins.items():
         px, py = rotate((x, y), orientation)
         ox, oy = rotate((dx, dy), orientation)
         out[terminal] = ((origin[0] + px, origin[1] + py), (round(ox), round(oy)))
@@ -180,10 +188,13 @@ def _symbol(kind: str, part_params: dict[str, float], orientation: str, origin: 
         mirrored = not mirrored if kind.startswith("n") else mirrored
         anchors = {"d": "drain", "g": "gate", "s": "source"}
     elif kind == "opamp":
-        # op-amps are always drawn inputs left, output right ("mirrored" is not offered)
-        element = elm.Opamp(leads=True).scale(0.8).anchor("vd").at((ox, oy + 0.672)).right()
-        anchors = {"in-": "in1", "in+": "in2", "out": "out", "v+": "vd", "v-": "vs"}
-        return element, anchors
+        # inputs left, output right; "flipped" puts in+ on top (the supply pins stay put)
+        element = elm.Opamp(leads=True).scale(0.8).anchor("center").at((ox + OPAMP_CENTRE, oy))
+        element = element.right()
+        if orientation == "flipped":
+            return element.flip(), {"in-": "in1", "in+": "in2", "out": "out", "v+": "vs",
+                                    "v-": "vd"}
+        return element, {"in-": "in1", "in+": "in2", "out": "out", "v+": "vd", "v-": "vs"}
     else:
         raise ValueError(f"no symbol for kind {kind!r}")
     if mirrored:
