@@ -7,6 +7,7 @@ compared with the netlist as a graph.  Reference for the comparison: the netlist
 from __future__ import annotations
 
 import pytest
+from draw_circuits import design, part
 from draw_random import random_design
 
 from docgen.draw import draw
@@ -46,3 +47,40 @@ def test_generator_makes_structures_not_only_chains() -> None:
     bridges = sum(1 for seed in range(300)
                   if sum(p.kind == "resistor" for p in random_design(seed).parts) >= 5)
     assert bridges > 50
+
+
+EDGE_CASES = {
+    "one resistor": [part(1, "R1", "resistor", 1e3, "a", "gnd")],
+    "both ends on one net": [part(1, "R1", "resistor", 1e3, "a", "a"),
+                             part(2, "R2", "resistor", 1e3, "a", "gnd")],
+    "no signal source": [part(1, "VB", "supply", 5, "v", "gnd"),
+                         part(2, "R1", "resistor", 1e3, "v", "x"),
+                         part(3, "Q1", "npn", None, "c=x", "b=x", "e=gnd")],
+    "everything on rails": [part(1, "VB", "supply", 5, "v", "gnd"),
+                            part(2, "C1", "capacitor", 1e-6, "v", "gnd"),
+                            part(3, "Q1", "npn", None, "c=v", "b=v", "e=gnd")],
+    "floating supply": [part(1, "VB", "supply", 5, "a", "b"),
+                        part(2, "R1", "resistor", 1e3, "a", "b")],
+    "op-amp follower": [part(1, "VS", "signal", 1, "in", "gnd"),
+                        part(2, "U1", "opamp", None, "in+=in", "in-=out", "out=out", "v+=gnd",
+                             "v-=gnd")],
+    "ring of capacitors": [part(1, "VS", "signal", 1, "in", "gnd"),
+                           part(2, "R9", "resistor", 1, "in", "n0"),
+                           *(part(3, f"C{i}", "capacitor", 1e-9, f"n{i}", f"n{(i + 1) % 6}")
+                             for i in range(6))],
+    "twelve parts on one net": [part(1, "VS", "signal", 1, "in", "gnd"),
+                                *(part(2, f"R{i}", "resistor", 1e3, "in", "gnd")
+                                  for i in range(12))],
+    "five pnps in parallel": [part(1, "VS", "signal", 1, "in", "gnd"),
+                              part(2, "VB", "supply", 9, "vcc", "gnd"),
+                              *(part(3, f"Q{i}", "pnp", None, f"c=c{i}", "b=in", "e=vcc")
+                                for i in range(5))],
+}
+
+
+@pytest.mark.parametrize("name", list(EDGE_CASES))
+def test_unusual_circuits_draw_without_crashing(name: str) -> None:
+    circuit = design(name, EDGE_CASES[name], "out")
+    schematic = draw(circuit)
+    assert schematic.report.ok, (schematic.report.faults, schematic.report.problems)
+    assert schematic.svg().startswith("<svg")

@@ -49,7 +49,7 @@ def layout(design: Design, op_voltages: Mapping[str, float] | None = None,
     rails = classify.rails(design, op_voltages)
     chosen = style or hints.arrangement
     if chosen == "layered":
-        placement = layered_layout(design, rails, hints)
+        placement = layered_layout(design, rails, hints, op_voltages)
     else:
         placement = amplifier_layout(design, rails, hints)
     placement.flags = net_flags(design, hints)

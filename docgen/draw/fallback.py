@@ -9,6 +9,8 @@ symbols wherever there is room.
 
 from __future__ import annotations
 
+from collections.abc import Mapping
+
 from docgen.design import Design
 from docgen.draw import classify
 from docgen.draw.hints import Hints
@@ -21,21 +23,25 @@ MAX_STACK = 4  # parts per column before a new column starts (keeps the aspect s
 RAIL_ORDER = {"up": 2, "ground": 1, "down": 0}
 
 
-def _orientation(part, rails: dict[str, str], hints: Hints) -> str:  # noqa: ANN001
+def _orientation(part, rails: dict[str, str], hints: Hints,  # noqa: ANN001
+                 volts: Mapping[str, float]) -> str:
     if part.kind in classify.ACTIVE:
         return "mirrored" if hints.mirrored(part.name) else "normal"
     p, n = part.nets
-    # the more positive rail (or the signal node) on top
-    chosen = "down" if RAIL_ORDER.get(rails.get(p, ""), 1.5) >= RAIL_ORDER.get(
-        rails.get(n, ""), 1.5) else "up"
+    if p in volts and n in volts and p not in rails and n not in rails:
+        chosen = "down" if volts[p] >= volts[n] else "up"  # the higher voltage on top
+    else:  # the more positive rail (or the signal node) on top
+        chosen = "down" if RAIL_ORDER.get(rails.get(p, ""), 1.5) >= RAIL_ORDER.get(
+            rails.get(n, ""), 1.5) else "up"
     if hints.turned(part.name):
         chosen = "up" if chosen == "down" else "down"
     return chosen
 
 
 def layered_layout(design: Design, rails: dict[str, str], hints: Hints,
-                   spacing: float = 1.0) -> Placement:
-    """Columns by signal distance, stacks within a column; wires are left to the router."""
+                   volts: Mapping[str, float] | None = None, spacing: float = 1.0) -> Placement:
+    """Columns by signal distance, stacks within a column; wires are left to the router.
+    With the operating point (``volts``), a part's higher-voltage end is drawn on top."""
     ranks = classify.signal_ranks(design, rails)
     columns: dict[int, list] = {}
     for part in design.parts:
@@ -48,7 +54,8 @@ def layered_layout(design: Design, rails: dict[str, str], hints: Hints,
     stacks = [parts[i:i + MAX_STACK] for rank in sorted(columns)
               for parts in [columns[rank]] for i in range(0, len(parts), MAX_STACK)]
     for parts in stacks:
-        stack = [place(p, _orientation(p, rails, hints), (0.0, 0.0)) for p in parts]
+        stack = [place(p, _orientation(p, rails, hints, volts or {}), (0.0, 0.0))
+                 for p in parts]
         left = min(extent(p)[0] for p in stack)
         right = max(extent(p)[1] for p in stack)
         y = 0.0
