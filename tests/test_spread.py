@@ -247,3 +247,20 @@ def test_terminal_shows_spread_yield_and_sensitivities(stage: dict) -> None:
     text = render(stage)
     assert "Spread across 200 boards (uniform" in text
     assert "Largest sensitivities" in text
+
+
+def test_spread_sections_validate_against_the_results_schema(stage: dict) -> None:
+    """JSON Schema draft 2020-12 (open standard) via the jsonschema library."""
+    import jsonschema
+
+    from docgen.units import round_results
+
+    with open("docgen/schema/results.schema.json", encoding="utf-8") as handle:
+        validator = jsonschema.Draft202012Validator(json.load(handle))
+    with_temperature = solved(BIAS, "output c\nboards 20\nambient 25 °C (0 °C .. 50 °C)")
+    for results in (stage, with_temperature):
+        validator.validate(json.loads(json.dumps(round_results(results))))
+    broken = json.loads(json.dumps(round_results(with_temperature)))
+    broken["spread"]["distribution"] = "triangular"
+    with pytest.raises(jsonschema.ValidationError):
+        validator.validate(broken)

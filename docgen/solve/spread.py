@@ -110,10 +110,14 @@ def statistics(values: Array) -> dict[str, Any]:
     finite = finite[np.isfinite(finite)]
     if not len(finite):
         return {"solved": 0}
-    counts, edges = np.histogram(finite, bins=HISTOGRAM_BINS)
+    low, high = float(finite.min()), float(finite.max())
+    if high - low > 1e-9 * max(abs(low), abs(high)):
+        counts, edges = np.histogram(finite, bins=HISTOGRAM_BINS)
+    else:  # no spread beyond rounding: one bin (numpy cannot split a range this narrow)
+        counts, edges = np.array([len(finite)]), np.array([low, high])
     return {
         "solved": len(finite),
-        "min": float(finite.min()), "max": float(finite.max()),
+        "min": low, "max": high,
         "mean": float(finite.mean()),
         "std": float(finite.std(ddof=1)) if len(finite) > 1 else 0.0,
         "percentiles": {str(p): float(v) for p, v in
