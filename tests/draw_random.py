@@ -11,6 +11,7 @@ from docgen.design import Design
 
 TWO_TERMINAL = ("resistor", "resistor", "resistor", "capacitor", "capacitor", "diode",
                 "inductor", "current")
+PREFIX = {"resistor": "R", "capacitor": "C", "diode": "D", "inductor": "L", "current": "I"}
 TRANSISTORS = {"npn": "cbe", "pnp": "cbe", "njfet": "dgs", "pjfet": "dgs", "nmos": "dgs",
                "pmos": "dgs"}
 
@@ -51,6 +52,6 @@ def random_design(seed: int) -> Design:
         if x in rails and y in rails:
             y = rng.choice(nets)
         kind = rng.choice(TWO_TERMINAL)
-        parts.append(part(40, name(kind[0].upper()), kind, None if kind == "diode" else 1e3,
+        parts.append(part(40, name(PREFIX[kind]), kind, None if kind == "diode" else 1e3,
                           x, y))
     return design(f"random-{seed}", parts, rng.choice(nets))
