@@ -38,6 +38,7 @@ from dataclasses import dataclass, replace
 import numpy as np
 
 from docgen.solve import mna
+from docgen.solve.devices import OUTPUT_KNEE
 from docgen.solve.linearise import SmallSignal
 from docgen.solve.newton import SolveOptions, newton
 
@@ -106,7 +107,7 @@ class Stepper:
         self.node_count = layout.node_count
         self.capacitance = np.broadcast_to(network.C[:1, : self.size, : self.size],
                                            (samples, self.size, self.size))
-        self._opamps = _opamp_rows(network, samples)
+        self._poles = _poles(network, samples)
         # the error is judged on the voltages of nodes with a capacitance (the states): an
         # algebraic node follows its drive exactly, and its derivative is never used
         reactive = np.any(network.C[0, : self.node_count, : self.size] != 0, axis=1)
@@ -127,7 +128,7 @@ class Stepper:
 
     @property
     def _width(self) -> int:
-        return self.size + len(self._opamps)
+        return self.size + len(self._poles)
 
     @property
     def x(self) -> Array:
@@ -141,9 +142,14 @@ class Stepper:
         self.history = _History(self.history.z, np.zeros_like(self.history.z))
         self._h_try = None
 
-    def _with_poles(self, x: Array) -> Array:
-        w = [x[:, out] + resistance * x[:, branch] for out, branch, resistance, _ in self._opamps]
-        return np.concatenate([x, np.stack(w, -1)], -1) if w else x.copy()
+    def _with_poles(self, x: Array, settings: list[tuple[Array, Array]] | None = None) -> Array:
+        """``z = [x, w]``: the unknowns and each op-amp's pole state."""
+        if not self._poles:
+            return x.copy()
+        x_full = mna.pad(x)
+        settings = settings or [(p.gain, p.offset) for p in self._poles]
+        w = [p.w(x_full, *setting) for p, setting in zip(self._poles, settings, strict=True)]
+        return np.concatenate([x, np.stack(w, -1)], -1)
 
     def advance(self, t_end: float, largest: float | None = None) -> None:
         """Step from ``self.t`` to exactly ``t_end``, halving steps where the error demands."""
@@ -178,6 +184,10 @@ class Stepper:
         t_new = self.t + h
         drive = None if self.stimulus is None else np.asarray(self.stimulus(t_new), float)
         augment = self._augment(a, r, drive)
+        settings = [p.effective(a, r[:, self.size + k]) for k, p in enumerate(self._poles)]
+        for pole, (gain, offset) in zip(self._poles, settings, strict=True):
+            values = self.problem.values[pole.name]
+            values["open_loop_gain"], values["input_offset_voltage"] = gain, offset
         # Newton starts from the secant through the last two solutions: extrapolating with the
         # derivative can land volts away on a node without capacitance (its derivative is not
         # smooth), and Newton's step cap then crawls
@@ -188,7 +198,7 @@ class Stepper:
         self.newton_iterations += int(attempt.iterations.max())
         if not attempt.converged.all():
             return np.inf
-        z_new = self._with_poles(attempt.x)
+        z_new = self._with_poles(attempt.x, settings)
         nodes = self._states
         error = 0.0  # no predictor yet: the first step is judged by Newton alone
         if history.h_prev is not None and nodes.size:
@@ -216,14 +226,6 @@ class Stepper:
             rhs = rhs + base_rhs
             if drive is not None and self._signal_row is not None:
                 rhs[:, self._signal_row] += drive
-            for k, (out, branch, resistance, tau) in enumerate(self._opamps):
-                # w = (E − τ·r_w)/(1 + τ·a); the branch row's E part is scaled accordingly
-                scale = 1.0 / (1.0 + tau * a)
-                direct = np.zeros((len(rhs), size))
-                direct[:, out], direct[:, branch] = 1.0, resistance
-                e_part = direct - matrix[:, branch, :]
-                matrix[:, branch, :] = direct - scale[:, None] * e_part
-                rhs[:, branch] = scale * (rhs[:, branch] - tau * r[:, size + k])
             return matrix, rhs
 
         return augment
@@ -246,17 +248,49 @@ def _split_linear(problem: mna.Problem) -> tuple[mna.Problem, tuple[Array, Array
     return replace(problem, circuit=rest), (matrix, rhs)
 
 
-def _opamp_rows(network: SmallSignal, samples: int) -> list[tuple[int, int, Array, Array]]:
-    """(output net row, branch row, Ro, τ) of each op-amp, τ from the network's pole row."""
+@dataclass(frozen=True)
+class _Pole:
+    """An op-amp's dominant pole: τ·dw/dt + w = A0·(vd + Vos), the output stage E = L(w)."""
+
+    name: str
+    inputs: tuple[int, int]
+    gain: Array
+    offset: Array
+    tau: Array
+    low: Array
+    high: Array
+
+    def effective(self, a: float, r: Array) -> tuple[Array, Array]:
+        """(gain, offset) that make the DC model's output stage see w = (A0·vd − τ·r)/(1 + τa)."""
+        return self.gain / (1.0 + self.tau * a), self.offset - self.tau * r / self.gain
+
+    def w(self, x_full: Array, gain: Array, offset: Array) -> Array:
+        """w at the solution, held within a little of the output's range (a real gain stage
+        saturates there, so it does not wind up far beyond the rails while clipping)."""
+        vd = x_full[:, self.inputs[0]] - x_full[:, self.inputs[1]]
+        margin = 10.0 * OUTPUT_KNEE
+        return np.clip(gain * (vd + offset), self.low - margin, self.high + margin)
+
+
+def _poles(network: SmallSignal, samples: int) -> list[_Pole]:
+    """Each op-amp's pole, τ from the network's pole row, its output range at the operating
+    point."""
     solution = network.solution
-    rows = []
-    for name, pole in network.poles.items():
+    poles = []
+    x_full = mna.pad(solution.x[:1])
+    for name, row in network.poles.items():
         local = solution.problem.layout.local[name]
-        resistance = solution.problem.values[name]["output_resistance"][:1]
-        tau = network.C[:1, pole, pole]
-        rows.append((local[2], local[5], np.repeat(resistance, samples),
-                     np.repeat(tau, samples)))
-    return rows
+        values = solution.problem.values[name]
+
+        def first(array: Array) -> Array:
+            return np.repeat(np.asarray(array, dtype=float)[:1], samples)
+
+        headroom = first(values["output_headroom"])
+        poles.append(_Pole(name, (local[0], local[1]), first(values["open_loop_gain"]),
+                           first(values["input_offset_voltage"]), first(network.C[:, row, row]),
+                           first(x_full[:, local[4]]) + headroom,
+                           first(x_full[:, local[3]]) - headroom))
+    return poles
 
 
 def run_grid(stepper: Stepper, step: float, count: int) -> Array:
