@@ -157,3 +157,30 @@ def test_yield_over_boards_for_the_spread_analysis() -> None:
     assert each == {"Q1 collector current : 0.5 mA .. 2 mA": pytest.approx(1 / 3),
                     "voltage at c1 : > 7 V": 1.0}
     assert yield_of(design, {}) == (None, {})
+
+
+def test_across_boards_end_to_end_against_the_triangular_distribution(tmp_path) -> None:
+    """A 10 V divider of two 1 % resistors, uniform tolerances (the bench default), solved by
+    the real spread analysis.  V − 5 V ≈ 2.5 V·(δ2 − δ1); the difference of two uniform ±1 %
+    draws is triangular on ±2 %, so P(|V − 5| > 40 mV) = ((0.02 − 0.016)/0.02)² = 4 % and the
+    yield is 96 % (sum of uniform variables, any probability textbook); every board lies within
+    5 V ± 50 mV (the resistors' extremes)."""
+    from docgen import pipeline
+    from docgen.check.gate import sections_for
+    from docgen.record import load_record
+
+    (tmp_path / "d.md").write_text(
+        "---\ntitle: divider\nstatus: approved\napproved: 2026-01-05\n---\n\n```circuit\n"
+        "VA supply 10 V : vcc gnd\nR1 resistor 1k 1% 0.25 W : vcc mid\n"
+        "R2 resistor 1k 1% 0.25 W : mid gnd\n```\n\n```bench\nboards 2000\n```\n\n"
+        "```require\nvoltage at mid : 4.96 V .. 5.04 V across boards\n```\n", encoding="utf-8")
+    record = load_record(str(tmp_path))
+    design = record.designs[0]
+    results = pipeline.run(design, record.models_for(design), only=sections_for(design))
+    (row,) = results["checks"]
+    assert row["samples"] == 2000 and row["unsolved"] == 0
+    assert row["yield"] == pytest.approx(0.96, abs=0.015)  # 3σ of a binomial over 2000 boards
+    assert row["verdict"] == "fail" and row["severity"] == "error"
+    assert 4.95 - 1e-9 <= row["worst"] <= 5.05 + 1e-9 and row["margin"] < 0
+    assert row["nominal"] == pytest.approx(5.0, rel=1e-9)
+    assert results["spread"]["yield"] == pytest.approx(row["yield"])
