@@ -21,6 +21,7 @@ from docgen.draw.pair import Pair, find_pairs
 from docgen.draw.parts import extent, place, shift
 from docgen.draw.placement import Placed, Placement
 from docgen.draw.totem import Totem, find_totems
+from docgen.kinds import GROUND
 
 UPPER_Y = 4.0
 LOWER_Y = -4.0
@@ -30,6 +31,7 @@ GAP = 1.0
 STACK_OFFSET = 2.5  # a part above/below a pin: its centre this far from the pin
 MAX_CHAIN = 3  # rail parts a chain head may lead to
 CHAIN_STEP = 4.0  # between the centres of two parts in series in one column
+SPLIT_Y = 2.5  # centres of split supplies above and below their shared ground
 FEEDBACK_CLEARANCE = 2.5  # room for rail symbols between the stage and a feedback part
 OPAMP_FEEDBACK_Y = 3.5
 RAIL_ORDER = {"up": 2, "ground": 1, "down": 0}
@@ -238,13 +240,17 @@ class _Builder:
                 cursor = self.slot(net, cursor, placed_slots)
         for net in nets_with_parts:
             cursor = self.slot(net, cursor, placed_slots)
-        for part in self.rail_parts:
-            item = place(part, self.orient(part, "rail"), (0.0, 0.0))
-            left, right = extent(item)
-            self.placed.append(shift(item, cursor - left))
+        shared: list[list[tuple[str, str]]] = []
+        for column in self.supply_columns():
+            items = [place(part, "down", (0.0, y)) for part, y in column]
+            left = min(extent(p)[0] for p in items)
+            right = max(extent(p)[1] for p in items)
+            self.placed.extend(shift(p, cursor - left) for p in items)
             cursor += right - left + GAP
+            if len(column) == 2:  # split supplies: one ground between them
+                shared.append([(column[0][0].name, "n"), (column[1][0].name, "p")])
         self.place_feedback()
-        return Placement(self.placed, dict(self.rails), top_level=TOP_LEVEL,
+        return Placement(self.placed, dict(self.rails), shared_rails=shared, top_level=TOP_LEVEL,
                          bottom_level=BOTTOM_LEVEL,
                          free_ports={p.part.name for p in self.placed
                                      if p.part.kind == "opamp" or p.part in self.rail_parts
@@ -272,6 +278,19 @@ class _Builder:
             self.placed.extend(shift(p, cursor - left) for p in column)
             cursor += right - left + GAP
         return cursor
+
+    def supply_columns(self) -> list[list[tuple[Part, float]]]:
+        """Parts between rails, one per column; a positive and a negative supply on ground
+        stand in one column, the positive one on top."""
+        ups = [p for p in self.rail_parts if p.kind == "supply" and p.nets[1] == GROUND
+               and self.rails.get(p.nets[0]) == "up"]
+        downs = [p for p in self.rail_parts if p.kind == "supply" and p.nets[0] == GROUND
+                 and self.rails.get(p.nets[1]) == "down"]
+        pairs = list(zip(ups, downs, strict=False))
+        paired = {p.name for pair in pairs for p in pair}
+        columns = [[(up, SPLIT_Y), (down, -SPLIT_Y)] for up, down in pairs]
+        columns += [[(p, 0.0)] for p in self.rail_parts if p.name not in paired]
+        return columns
 
     def place_feedback(self) -> None:
         xs: dict[str, list[float]] = {}

@@ -74,6 +74,8 @@ class Placement:
     top_level: float | None = None  # positive-rail symbols at or above this y
     bottom_level: float | None = None  # ground/negative-rail symbols at or below this y
     free_ports: set[str] = field(default_factory=set)  # parts whose rail pins skip the levels
+    shared_rails: list[list[tuple[str, str]]] = field(default_factory=list)  # wired together,
+    # one symbol for the group: [(part, terminal), ...] on one rail
     style: str = "amplifier"
     wires: list[list[Point]] = field(default_factory=list)
     ports: list[Port] = field(default_factory=list)
@@ -107,9 +109,11 @@ def wire(placement: Placement) -> Placement:
             grid.add_pin(net, node_of(pin), outward)
             pins_by_net.setdefault(net, []).append((node_of(pin), placed))
     ports: list[Port] = []
+    grouped = _shared_rails(grid, placement, ports)
     for net in sorted(placement.rails, key=_net_order(placement)):
         for node, placed in sorted(pins_by_net.get(net, []), key=lambda item: item[0]):
-            _rail_port(grid, placement, ports, net, node, placed)
+            if node not in grouped:
+                _rail_port(grid, placement, ports, net, node, placed)
     signal_nets = [n for n in pins_by_net if n not in placement.rails]
     for net in sorted(signal_nets, key=lambda n: (_spread(pins_by_net[n]), n)):
         pins = sorted(node for node, _ in pins_by_net[net])
@@ -122,6 +126,27 @@ def wire(placement: Placement) -> Placement:
     placement.wires = [_polyline(path) for _net, path in grid.paths if len(path) > 1]
     placement.dots = _junctions(grid, ports)
     return placement
+
+
+def _shared_rails(grid: Grid, placement: Placement, ports: list[Port]) -> set[Node]:
+    """Wire each group of rail pins together and give the group one symbol."""
+    done: set[Node] = set()
+    by_name = {p.part.name: p for p in placement.parts}
+    for group in placement.shared_rails:
+        placed = [by_name[name] for name, _ in group]
+        net = placed[0].part.net(group[0][1])
+        nodes = [node_of(p.pins()[t][0]) for p, (_, t) in zip(placed, group, strict=True)]
+        grid.lay(net, [nodes[0]])
+        if not all(grid.connect(net, node) for node in nodes[1:]):
+            continue  # left to the pin-by-pin symbols
+        done.update(nodes)
+        style = placement.rails[net]
+        for start in sorted(grid.tree[net] - set(nodes)) or nodes:
+            if _add_port(grid, ports, net, start, style, lambda _node: True, force=False):
+                break
+        else:
+            _add_port(grid, ports, net, nodes[0], "flag", lambda _node: True)
+    return done
 
 
 def _net_order(placement: Placement):  # noqa: ANN202 - a sort key
