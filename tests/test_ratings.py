@@ -184,3 +184,18 @@ def test_parts_without_rating_or_tolerance_are_noted(tmp_path: Path) -> None:
     (note,) = results["cautions"]
     assert (note["part"], note["severity"]) == ("R1", "info")
     assert "no power rating" in note["message"] and "no tolerance" in note["message"]
+
+
+def test_signal_beyond_extra_low_voltage_ac_is_a_hazard(tmp_path: Path) -> None:
+    """100 V peak is 70.7 V rms (÷√2 for a sine), above 50 V AC rms (IEC 61140, from memory);
+    70 V peak (49.5 V rms) is not."""
+    found = _only(_cautions(tmp_path, """
+VS  signal    100 V 50 Hz       : in gnd
+R1  resistor  1M 1% 0.25 W      : in gnd
+"""))
+    assert found["severity"] == "hazard" and found["unit"] == "V rms"
+    assert found["value"] == pytest.approx(100 / 2 ** 0.5) and found["limit"] == 50.0
+    assert _cautions(tmp_path, """
+VS  signal    70 V 50 Hz        : in gnd
+R1  resistor  1M 1% 0.25 W      : in gnd
+""") == []
