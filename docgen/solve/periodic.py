@@ -43,6 +43,7 @@ RINGING = 1e-3
 class PeriodicRun:
     """The last period of a sine-driven run (see the module docstring)."""
 
+    network: SmallSignal
     grid: Array
     frequency: float
     amplitudes: Array
@@ -76,12 +77,14 @@ def _alternating(grid: Array, nets: int) -> Array:
 
 def steady_state(network: SmallSignal, amplitudes: Array, frequency: float,
                  points: int = POINTS, max_periods: int = MAX_PERIODS,
-                 method: str = "trapezoidal", tolerance: float | None = None) -> PeriodicRun:
-    """March the circuit with a sine of each amplitude until the waveform repeats."""
+                 method: str = "trapezoidal", relative_tolerance: float = 1e-4) -> PeriodicRun:
+    """March the circuit with a sine of each amplitude until the waveform repeats.
+
+    :param relative_tolerance: the local error allowed per step, as a share of the supply span.
+    """
     amplitudes = np.asarray(amplitudes, dtype=float)
     omega = 2.0 * math.pi * frequency
-    if tolerance is None:
-        tolerance = 1e-4 * _supply_span(network)
+    tolerance = relative_tolerance * _supply_span(network)
 
     def drive(t: float) -> Array:
         return amplitudes * math.sin(omega * t)
@@ -109,7 +112,7 @@ def steady_state(network: SmallSignal, amplitudes: Array, frequency: float,
             if count >= MIN_PERIODS and reached.all():
                 break
         previous = grid
-    return PeriodicRun(grid, frequency, amplitudes, reached, change, count, stepper.method,
+    return PeriodicRun(network, grid, frequency, amplitudes, reached, change, count, stepper.method,
                        stepper.steps, stepper.rejected)
 
 
