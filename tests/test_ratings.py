@@ -199,3 +199,58 @@ R1  resistor  1M 1% 0.25 W      : in gnd
 VS  signal    70 V 50 Hz        : in gnd
 R1  resistor  1M 1% 0.25 W      : in gnd
 """) == []
+
+
+def _solved(tmp_path: Path, text: str, sections: set[str]) -> dict:
+    (tmp_path / "trip.md").write_text(text, encoding="utf-8")
+    record = load_record(str(tmp_path))
+    design = record.designs[0]
+    return pipeline.run(design, record.models_for(design), only=frozenset(sections))
+
+
+SIGNAL_INTO_RESISTOR = HEADER + """VS  signal    10 V 1 kHz        : in gnd
+R1  resistor  100 1% 0.25 W     : in gnd
+```
+
+```bench
+input   VS
+output  in
+```
+"""
+
+
+def test_resistor_power_over_the_signal_cycle(tmp_path: Path) -> None:
+    """10 V peak across 100 Ω: average power Vp²/(2R) = 0.5 W (sine, Joule), over 0.25 W;
+    at the operating point the signal is zero, so only the large-signal average trips it."""
+    static = _solved(tmp_path, SIGNAL_INTO_RESISTOR, {"op", "cautions"})
+    assert [c for c in static["cautions"] if c["severity"] != "info"] == []
+    results = _solved(tmp_path, SIGNAL_INTO_RESISTOR, {"op", "ac", "transient", "cautions"})
+    found = _only([c for c in results["cautions"] if c["severity"] != "info"])
+    assert found["value"] == pytest.approx(10 ** 2 / (2 * 100), rel=1e-3)
+    assert "over the signal cycle" in found["message"]
+
+
+BIAS_PLUS_SIGNAL = HEADER + """VB  supply     12 V              : vcc gnd
+R1  resistor   10k 1% 0.25 W     : vcc n
+VS  signal     6 V 1 kHz         : in gnd
+CC  capacitor  10u 10% 50 V      : in n
+C2  capacitor  1n 10% 16 V       : n gnd
+```
+
+```bench
+input   VS
+output  n
+```
+"""
+
+
+def test_capacitor_voltage_with_the_signal_peak(tmp_path: Path) -> None:
+    """C2 holds 12 V of bias, under its 16 V rating; the 6 V peak signal coupled onto it
+    (CC's 16 Ω and C2's 159 kΩ at 1 kHz hardly divide it) brings the peak to about 18 V
+    (superposition of bias and signal, common practice)."""
+    static = _solved(tmp_path, BIAS_PLUS_SIGNAL, {"op", "cautions"})
+    assert [c for c in static["cautions"] if c["severity"] != "info"] == []
+    results = _solved(tmp_path, BIAS_PLUS_SIGNAL, {"op", "ac", "transient", "cautions"})
+    found = _only([c for c in results["cautions"] if c["severity"] != "info"])
+    assert (found["part"], found["figure"], found["limit"]) == ("C2", "voltage", 16.0)
+    assert found["value"] == pytest.approx(18.0, abs=0.3)
