@@ -23,10 +23,10 @@ SECTION_PRINTERS: list[tuple[str, str]] = [
     ("op", "docgen.report:print_op"),
     ("ac", "docgen.report_small_signal:print_ac"),
     ("noise", "docgen.report_small_signal:print_noise"),
-    ("spread", "docgen.report_spread:print_spread"),
     ("checks", "docgen.report_checks:print_checks"),
     ("cautions", "docgen.report_checks:print_cautions"),
     ("estimates", "docgen.report_checks:print_estimates"),
+    ("spread", "docgen.report_spread:print_spread"),  # the detail after the verdicts
 ]
 
 #: Sections that are not results of an analysis (never printed as a section).
