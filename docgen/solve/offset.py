@@ -64,7 +64,9 @@ def offset_budget(circuit: Circuit, output_net: str, options: Any = None) -> dic
         values[base + 2 * k] *= 1.0 - device.tolerance
         values[base + 2 * k + 1] *= 1.0 + device.tolerance
         overrides[(device.name, "value")] = values
-    solution = solve_op(circuit, overrides, options=options)
+    # the temperature array fixes the batch size when nothing is overridden
+    solution = solve_op(circuit, overrides, np.full(count, circuit.temperature_c),
+                        options=options)
     out = solution.voltage(output_net)
     converged = solution.converged
     change = out - out[0]
