@@ -279,10 +279,7 @@ def test_output_offset_is_vos_times_noise_gain_plus_bias_current_terms():
     assert tolerance["RF"] == pytest.approx(abs(rf_up - expected), rel=1e-4)
 
 
-def test_full_power_bandwidth_is_slew_rate_over_two_pi_peak():
-    """Full-power bandwidth = SR/(2π·Vpeak) (Sedra & Smith, from memory), at the output peak
-    the bench signal produces (1 V from 0.1 V through a gain of 10)."""
-    circuit = """
+SLOW_STAGE = """
 VP  supply   15 V  : vp gnd
 VN  supply   15 V  : gnd vn
 VS  signal   0.1 V 10 kHz : in gnd
@@ -290,12 +287,38 @@ U1  opamp    slow : in+=in in-=fb out=out v+=vp v-=vn
 RF  resistor 9k    : out fb
 RG  resistor 1k    : fb gnd
 """
-    models = "slow opamp open_loop_gain=1G gain_bandwidth=100M slew_rate=0.5M"
-    limits = feedback(circuit, models, "input VS\noutput out")["opamps"]["U1"]
-    assert limits["output_peak_v"] == pytest.approx(1.0, rel=1e-6)
-    assert limits["full_power_bandwidth_hz"] == pytest.approx(0.5e6 / (TWO_PI * 1.0), rel=1e-6)
+SLOW = "slow opamp open_loop_gain=1G gain_bandwidth=10M slew_rate=0.5M output_headroom=1"
+
+
+def test_slew_limited_large_step_ramps_at_the_slew_rate():
+    """A large step through the time march: the output ramps no faster than the slew rate
+    and reaches it (0.5 V/µs, the model's value; Sedra & Smith, "slew rate", from memory),
+    while the small step of the same stage is not slew-limited (its steepest slope is set by
+    the closed-loop bandwidth: 10 mV·2π·1 MHz = 63 kV/s per the single pole)."""
+    section = feedback(SLOW_STAGE, SLOW, "input VS\noutput out")
+    large = section["slew_step"]
+    assert large["slew_rate_v_per_s"] == 0.5e6
+    # the output range is ±14 V: a 14 V step at the output, 28 µs of slewing
+    assert large["amplitude_v"] * 10 == pytest.approx(14.0, rel=1e-3)
+    assert large["steepest_slope_v_per_s"] == pytest.approx(0.5e6, rel=1e-6)
+    times, wave = np.array(large["time_s"]), np.array(large["output_v"])
+    ramp = (wave > 2.0) & (wave < 10.0)
+    slope = np.polyfit(times[ramp], wave[ramp], 1)[0]
+    assert slope == pytest.approx(0.5e6, rel=1e-6)
+    assert section["step"]["overshoot_percent"] == pytest.approx(0.0, abs=1e-6)
+
+
+def test_full_power_bandwidth_is_slew_rate_over_two_pi_peak():
+    """Full-power bandwidth = SR/(2π·Vpeak) (Sedra & Smith, from memory), at the output peak
+    the bench signal produces: 0.1 V through a gain of 10 whose single-pole closed-loop
+    bandwidth is GBW/10 = 1 MHz, so 1 V/√(1 + (10 kHz/1 MHz)²) (Sedra & Smith, from memory)."""
+    limits = feedback(SLOW_STAGE, SLOW, "input VS\noutput out")["opamps"]["U1"]
+    peak = 1.0 / math.sqrt(1 + (10e3 / 1e6) ** 2)
+    assert limits["output_peak_v"] == pytest.approx(peak, rel=1e-6)
+    assert limits["full_power_bandwidth_hz"] == pytest.approx(0.5e6 / (TWO_PI * peak), rel=1e-6)
     # 2π·10 kHz·1 V = 62.8 kV/s < 0.5 V/µs: not slew-limited
     assert limits["slew_limited"] is False
+    assert limits["output_range_v"] == [-14.0, 14.0]
 
 
 def _errors(bench: str) -> tuple[list[dict], int]:

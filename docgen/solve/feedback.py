@@ -23,7 +23,7 @@ from docgen.solve import curves, loopgain, rejection
 from docgen.solve.linearise import SmallSignal, nominal_network
 from docgen.solve.offset import offset_budget
 from docgen.solve.response import endpoints, sweep
-from docgen.solve.step import run_step, step_figures
+from docgen.solve.step import run_step, steepest_slope, step_figures
 from docgen.units import QuantityError, parse_value
 
 Array = np.ndarray
@@ -52,6 +52,7 @@ def analyse(ctx: Any) -> dict[str, Any]:
     section["output_offset_v"] = offset["output_offset_v"]
     section["opamps"] = _opamp_limits(network, input_part)
     section["step"] = _step(ctx, network, output_net, section)
+    section["slew_step"] = _slew_step(ctx, network, output_net, section)
     section["overshoot_percent"] = section["step"].get("overshoot_percent")
     section["settling_time_s"] = section["step"].get("settling_time_s")
     return section
@@ -235,6 +236,28 @@ def _step(ctx: Any, network: SmallSignal, output_net: str, section: dict[str, An
     return {"amplitude_v": amplitude, "duration_s": duration, "time_s": _plain(times),
             "output_v": _plain(wave), "method": "BDF2 time march of the operating point's "
             "equations", **figures}
+
+
+def _slew_step(ctx: Any, network: SmallSignal, output_net: str, section: dict[str, Any]
+               ) -> dict[str, Any] | None:
+    """A large step (half the narrowest op-amp output range at the output) through the
+    slew-limited time march: the output's steepest slope against the slew rate."""
+    limited = {name: figures for name, figures in section["opamps"].items()
+               if figures["slew_rate_v_per_s"] is not None}
+    speed = _speed_hz(ctx, section)
+    if not limited or speed is None:
+        return None
+    slew = min(figures["slew_rate_v_per_s"] for figures in limited.values())
+    span = min(figures["output_range_v"][1] - figures["output_range_v"][0]
+               for figures in limited.values())
+    gain_db = (ctx.results.get("ac") or {}).get("midband_gain_db")
+    gain = 10.0 ** (gain_db / 20.0) if gain_db is not None else 1.0
+    height = 0.5 * span
+    duration = max(STEP_WINDOW / (2.0 * math.pi * speed), 3.0 * height / slew)
+    times, wave = run_step(network, height / gain, duration, output_net, scale=height)
+    return {"amplitude_v": height / gain, "duration_s": duration, "slew_rate_v_per_s": slew,
+            "steepest_slope_v_per_s": steepest_slope(times, wave),
+            "time_s": _plain(times), "output_v": _plain(wave)}
 
 
 # --------------------------------------------------------------------------- helpers

@@ -6,8 +6,9 @@ Public API::
     figures = step_figures(times, output, band=0.01)                    # measurements
 
 The step is applied in series with the bench signal at t = 0+ and the circuit is integrated
-from its operating point by :class:`docgen.solve.integrate.Stepper` (the operating point's
-own nonlinear equations, BDF2), its error held to a small fraction of the output step.
+from its operating point by :class:`docgen.solve.slewing.SlewingStepper` (the operating
+point's own nonlinear equations, BDF2, op-amp outputs limited to their slew rate), its error
+held to a small fraction of the output step.
 Definitions (Ogata, *Modern Control Engineering*, from memory):
 
 - the final value is the mean of the last 5 % of the window;
@@ -23,8 +24,9 @@ from typing import Any
 
 import numpy as np
 
-from docgen.solve.integrate import Stepper, run_grid
+from docgen.solve.integrate import run_grid
 from docgen.solve.linearise import SmallSignal
+from docgen.solve.slewing import SlewingStepper
 
 Array = np.ndarray
 
@@ -42,7 +44,7 @@ def run_step(network: SmallSignal, amplitude: float, duration: float, output_net
         step is :data:`RELATIVE_ERROR` of it (default: of the input step).
     """
     tolerance = RELATIVE_ERROR * abs(scale if scale else amplitude)
-    stepper = Stepper(network, 1, lambda t: np.array([amplitude]), method="bdf2",
+    stepper = SlewingStepper(network, 1, lambda t: np.array([amplitude]), method="bdf2",
                       tolerance=max(tolerance, 1e-12))
     x = run_grid(stepper, duration / points, points)[:, 0, :]
     times = np.arange(1, points + 1) * duration / points
@@ -50,6 +52,11 @@ def run_step(network: SmallSignal, amplitude: float, duration: float, output_net
     start = 0.0 if row is None else float(network.solution.x[0, row])
     wave = np.zeros(len(times)) if row is None else x[:, row] - start
     return np.concatenate([[0.0], times]), np.concatenate([[0.0], wave])
+
+
+def steepest_slope(times: Array, output: Array) -> float:
+    """The largest |dv/dt| between neighbouring points of a waveform (V/s)."""
+    return float(np.max(np.abs(np.diff(output) / np.diff(times))))
 
 
 def _first_crossing(times: Array, y: Array, level: float) -> float | None:
