@@ -84,3 +84,15 @@ def test_unusual_circuits_draw_without_crashing(name: str) -> None:
     schematic = draw(circuit)
     assert schematic.report.ok, (schematic.report.faults, schematic.report.problems)
     assert schematic.svg().startswith("<svg")
+
+
+def test_a_failing_amplifier_layout_falls_back(monkeypatch: pytest.MonkeyPatch) -> None:
+    import docgen.draw.amplifier
+
+    def broken(*_args: object, **_kwargs: object) -> None:
+        raise RuntimeError("deliberately broken for the test")
+
+    monkeypatch.setattr(docgen.draw.amplifier, "amplifier_layout", broken)
+    schematic = draw(random_design(5))
+    assert schematic.placement.style == "layered" and schematic.report.ok
+    assert "deliberately broken" in schematic.notes[0]

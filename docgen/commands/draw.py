@@ -38,7 +38,7 @@ def run(args: argparse.Namespace) -> int:
                                      "nothing to draw: the page has no circuit block"))
     volts = _operating_point(args.file, design) if args.operating_point else None
     schematic = draw(design, volts, style="layered" if args.layered else None)
-    for line in schematic.report.faults + schematic.report.problems:
+    for line in schematic.notes + schematic.report.faults + schematic.report.problems:
         print(f"{args.file}: warning: schematic: {line}", file=sys.stderr)
     svg = schematic.svg()
     if args.output:

@@ -11,7 +11,7 @@ the layered one is used instead; a drawing is never returned without being check
 from __future__ import annotations
 
 from collections.abc import Mapping
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from typing import Any
 
 from docgen.design import Design
@@ -30,6 +30,7 @@ class Schematic:
     placement: Placement
     drawing: Any
     report: Report
+    notes: list[str] = field(default_factory=list)  # why a layout was set aside
 
     def svg(self) -> str:
         """The SVG text."""
@@ -68,13 +69,23 @@ def draw(design: Design, op_voltages: Mapping[str, float] | None = None,
     hints = read_hints(design)
     chosen = style or hints.arrangement
     styles = ["layered"] if chosen == "layered" else ["amplifier", "layered"]
+    notes: list[str] = []
     result = None
     for style in styles:
-        placement = layout(design, op_voltages, hints, style)
+        try:
+            placement = layout(design, op_voltages, hints, style)
+        except Exception as exc:  # noqa: BLE001 - a layout bug must not cost the drawing
+            if style == "layered":
+                raise
+            notes.append(f"the amplifier layout failed ({type(exc).__name__}: {exc})")
+            continue
         drawing = to_drawing(placement)
-        result = Schematic(placement, drawing, readback.check(design, drawing))
+        result = Schematic(placement, drawing, readback.check(design, drawing), notes)
         if result.report.ok and not placement.flagged:
             break
+        notes.append(f"the {style} layout was not clean; "
+                     + "; ".join((result.report.faults + result.report.problems)[:3]
+                                 or [f"nets drawn by name: {', '.join(placement.flagged)}"]))
     return result
 
 
