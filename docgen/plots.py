@@ -16,6 +16,7 @@ from typing import Any, Literal
 
 WIDTH_IN = 7.0  # fits the page's text column at 96 dpi (about 670 px)
 ROW_IN = 2.6
+SMALL_WIDTH_IN = 3.45  # two small plots (histograms, drift) side by side in the column
 MARGIN_IN = (0.85, 0.15, 0.55, 0.12)  # left, right, bottom, top
 LIMIT_COLOUR = "#b03a2e"
 CURVE_COLOURS = ("#1f4e79", "#7a5c00", "#3d7a3d", "#6b3d7a")
@@ -86,13 +87,14 @@ def _to_svg(fig: Any) -> str:
     return buffer.getvalue()
 
 
-def _figure(rows: int, *, sharex: bool = True, height: float = ROW_IN) -> tuple[Any, list[Any]]:
+def _figure(rows: int, *, sharex: bool = True, height: float = ROW_IN,
+            width: float = WIDTH_IN) -> tuple[Any, list[Any]]:
     plt = _pyplot()
     total = height * rows
-    fig, axes = plt.subplots(rows, 1, figsize=(WIDTH_IN, total), sharex=sharex, squeeze=False)
+    fig, axes = plt.subplots(rows, 1, figsize=(width, total), sharex=sharex, squeeze=False)
     # Fixed margins in inches (not a "tight" bounding box): one drawing pass instead of two,
     # and every figure of a kind lines up with the others.
-    fig.subplots_adjust(left=MARGIN_IN[0] / WIDTH_IN, right=1 - MARGIN_IN[1] / WIDTH_IN,
+    fig.subplots_adjust(left=MARGIN_IN[0] / width, right=1 - MARGIN_IN[1] / width,
                         bottom=MARGIN_IN[2] / total, top=1 - MARGIN_IN[3] / total,
                         hspace=0.55 / height)
     return fig, [row[0] for row in axes]
@@ -212,7 +214,7 @@ def histogram(samples: Sequence[float], *, unit: str, label: str, bins: int = 30
               marks: Sequence[Mark] = ()) -> str:
     """Distribution of one metric across boards: raw ``samples``, or ``counts`` per bin with
     the bin ``edges``."""
-    fig, axes = _figure(1, height=1.9)
+    fig, axes = _figure(1, height=2.1, width=SMALL_WIDTH_IN)
     ax = axes[0]
     if counts is not None and edges is not None:
         widths = [b - a for a, b in zip(edges[:-1], edges[1:], strict=True)]
@@ -223,6 +225,7 @@ def histogram(samples: Sequence[float], *, unit: str, label: str, bins: int = 30
     from matplotlib.ticker import MaxNLocator
 
     ax.yaxis.set_major_locator(MaxNLocator(integer=True))
+    ax.xaxis.set_major_locator(MaxNLocator(nbins=4))  # labels must not collide on a small plot
     ax.xaxis.set_major_formatter(_eng(unit))
     ax.set_xlabel(label)
     ax.set_ylabel("boards")
@@ -233,7 +236,7 @@ def histogram(samples: Sequence[float], *, unit: str, label: str, bins: int = 30
 def drift(temperature_c: Sequence[float], values: Sequence[float], *, unit: str,
           label: str, marks: Sequence[Mark] = ()) -> str:
     """One metric against ambient temperature."""
-    fig, axes = _figure(1, height=1.9)
+    fig, axes = _figure(1, height=2.1, width=SMALL_WIDTH_IN)
     ax = axes[0]
     ax.plot(temperature_c, values, marker="o", markersize=3, color=CURVE_COLOURS[0])
     ax.yaxis.set_major_formatter(_eng(unit))

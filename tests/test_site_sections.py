@@ -73,17 +73,38 @@ def test_spread_section_statistics_and_histograms(design) -> None:  # noqa: ANN0
     corners = rng.normal(1600.0, 40.0, 200)
     samples = {"high corner": [*corners.tolist(), None],
                "gain at 100 Hz": rng.normal(-0.02, 0.001, 201).tolist()}
-    section = _by_anchor(design, {"spread": {"samples": samples, "yield": 0.995}})["spread"]
+    section = _by_anchor(design, {"spread": {"samples": samples, "yield": 0.995,
+                                             "boards": 201, "unsolved": 1}})["spread"]
     facts = dict(section["facts"])
-    assert facts["boards"] == "201" and facts["yield (every requirement met)"] == "99.5 %"
-    (stats,) = section["tables"]
+    assert facts["boards"] == "201"
+    assert facts["yield (every sampled requirement met)"] == "99.5 %"
+    stats = section["tables"][0]
     row = stats["rows"][0]  # requirements order: high corner first
     assert row[0] == "high corner" and row[-1] == "1"  # one unsolved board
-    assert row[3] == f"{np.mean(corners) / 1e3:.3g} kHz"
-    assert row[2] == f"{np.percentile(corners, 1) / 1e3:.3g} kHz"
+    assert row[4] == f"{np.mean(corners) / 1e3:.3g} kHz"  # no statistics given: numpy's
+    assert row[3] == f"{np.percentile(corners, 1) / 1e3:.3g} kHz"
     files = [f["file"] for f in section["figures"]]
     assert files == ["spread-01.svg", "spread-02.svg"]
+    assert all(f["small"] for f in section["figures"])
     assert LIMIT_COLOUR in section["figures"][0]["svg"]
+
+
+def test_spread_section_uses_the_analysis_statistics(design) -> None:  # noqa: ANN001
+    stats = {"unit": "Hz", "nominal": 1591.0, "min": 1500.0, "max": 1700.0, "mean": 1600.0,
+             "std": 30.0, "percentiles": {"1": 1520.0, "99": 1680.0},
+             "histogram": {"edges": [1500.0, 1600.0, 1700.0], "counts": [120, 80]}}
+    spread = {"samples": {"high corner": [1500.0, 1700.0]}, "metrics": {"high corner": stats},
+              "yield_by_requirement": {"high corner : 1 kHz .. 2 kHz": 1.0},
+              "worst_case": {"high corner": {"parameters": ["R1", "C1"], "low": 1450.0,
+                                             "high": 1750.0}},
+              "not_sampled": ["THD"]}
+    section = _by_anchor(design, {"spread": spread})["spread"]
+    statistics, yields, worst = section["tables"]
+    assert statistics["rows"][0] == ["high corner", "1.59 kHz", "1.5 kHz", "1.52 kHz", "1.6 kHz",
+                                     "1.68 kHz", "1.7 kHz", "30 Hz", "0"]
+    assert yields["rows"] == [["high corner : 1 kHz .. 2 kHz", "100 %"]]
+    assert worst["rows"] == [["high corner", "1.45 kHz", "1.75 kHz", "R1, C1"]]
+    assert "THD" in section["notes"][0]
 
 
 def test_temperature_and_sensitivity_sections(design) -> None:  # noqa: ANN001
@@ -99,7 +120,7 @@ def test_temperature_and_sensitivity_sections(design) -> None:  # noqa: ANN001
     assert drift["tables"][0]["rows"] == [["high corner", "1.55 kHz", "1.66 kHz", "110 Hz"]]
     assert [f["file"] for f in drift["figures"]] == ["drift-01.svg"]
     ranking = sections["sensitivity"]["tables"][0]["rows"]
-    assert [r[1] for r in ranking] == ["C1", "R1", "VS.source"]  # largest magnitude first
+    assert ranking == [["high corner", "C1 \u22121 · R1 \u22120.98 · VS.source \u22120.005"]]
 
 
 def test_large_signal_and_feedback_sections(design) -> None:  # noqa: ANN001

@@ -111,8 +111,7 @@ def solve_all(view: RecordView, wanted: list[str], options: BuildOptions,
     with _progress(len(wanted), options.progress) as bar:
         bar.update(len(wanted) - len(missing))
         for rel, bundle in _compute(view, missing, jobs, options.designs_dir):
-            if not bundle.get("internal_error"):  # a docgen bug is retried, never cached
-                cache.put(keys[rel], bundle)
+            cache.put(keys[rel], bundle)  # a docgen crash too: the key covers docgen's code
             bundles[rel] = bundle
             report.solved.append(rel)
             bar.update(1)

@@ -35,9 +35,9 @@ def table(caption: str, columns: Sequence[str], rows: list[list[str]],
     return {"caption": caption, "columns": list(columns), "rows": rows, "numeric": flags}
 
 
-def figure(file: str, caption: str, svg: str) -> dict[str, str]:
-    """A figure stored as ``file`` in the page's files folder."""
-    return {"file": file, "caption": caption, "svg": svg}
+def figure(file: str, caption: str, svg: str, small: bool = False) -> dict[str, Any]:
+    """A figure stored as ``file`` in the page's files folder; ``small`` ones sit side by side."""
+    return {"file": file, "caption": caption, "svg": svg, "small": small}
 
 
 def curve_of(section: dict[str, Any], key: str, length: int) -> list[float] | None:
