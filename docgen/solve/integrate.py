@@ -50,8 +50,8 @@ METHODS = {"trapezoidal": "trapezoidal rule", "bdf2": "BDF2 (Gear's second-order
 ERROR_FACTOR = {"euler": 0.5, "trapezoidal": 1.0 / 6.0, "bdf2": 8.0 / 23.0}
 #: Newton per step: looser than the operating point's tolerances (a time step is re-solved
 #: next step anyway), tight enough that the waveform error is set by the step, not Newton.
-STEP_OPTIONS = SolveOptions(relative_tolerance=1e-7, voltage_tolerance=1e-7,
-                            current_tolerance=1e-10, max_iterations=25)
+STEP_OPTIONS = SolveOptions(relative_tolerance=1e-6, voltage_tolerance=1e-6,
+                            current_tolerance=1e-9, max_iterations=25)
 SMALLEST_FRACTION = 2.0 ** -12
 
 

@@ -78,7 +78,12 @@ def analyse(ctx: Any) -> dict[str, Any]:
     distortion = thd(output.T)
     section = _bench_figures(ctx, run, output, amplitude, distortion, input_part)
     section["amplitudes"] = [_amplitude_row(run, output, k) for k in range(1, 1 + len(requested))]
-    section.update(_swing(ctx, network, frequency, ladder, output_net))
+    try:
+        section.update(_swing(ctx, network, frequency, ladder, output_net))
+    except AnalysisError as exc:  # the bench figures stand without the swing
+        section.update({"max_swing_vpp": None, "swing_limit_amplitude_v": None,
+                        "headroom_pos_v": None, "headroom_neg_v": None,
+                        "swing_reason": exc.diagnostics[0].message})
     section["clipping"] = clipping_events(run, network, output_net, 0)
     return section
 
