@@ -19,9 +19,12 @@ from docgen.units import QuantityError, parse_percent, parse_temperature, parse_
 
 #: bench keys kept as raw text in ``Bench.extra`` -> what they mean (for the docs).
 EXTRA_KEYS: dict[str, str] = {
-    "common mode": "a common-mode stimulus for the rejection analysis",
-    "loop": "where the feedback loop is broken for the loop-gain analysis",
-    "step": "the amplitude of the input step for the step response",
+    "common mode": "`VA VB`: the two signal or supply parts driving a differential input "
+                   "(a 0 V supply holds an input), for the common-mode rejection; default none",
+    "loop": "`U1` or `U1 Q3`: the op-amps or transistors whose loop gain is measured (return "
+            "ratio of their controlled source); default every op-amp in negative feedback",
+    "step": "`10 mV`: the height of the input step for the step response; default 10 mV at the "
+            "output over the midband gain",
     "amplitudes": "input amplitudes for the distortion sweep",
 }
 
