@@ -374,3 +374,8 @@ U1  opamp    clean : in+=in in-=out out=out v+=vp v-=vn
     assert verdicts["output offset"]["verdict"] == "pass"
     # the op-amp model has no supply dependence: no PSRR figure, said so
     assert verdicts["PSRR at 100 Hz"]["value"] is None
+    from docgen.report import render
+
+    text = render(out)
+    assert "phase margin" in text and "90 °" in text
+    assert "Output offset budget at out" in text

@@ -34,6 +34,8 @@ LOOP_SWEEP_EXTENSION = 1000.0
 STEP_WINDOW = 60.0
 #: default step: this output change (V) over the midband gain (a small step).
 STEP_OUTPUT_V = 0.01
+#: grid points of the large step (its slope needs fewer than the small step's ringing).
+SLEW_POINTS = 300
 #: settling band of the step response (1 %).
 SETTLING_BAND = 0.01
 
@@ -254,7 +256,8 @@ def _slew_step(ctx: Any, network: SmallSignal, output_net: str, section: dict[st
     gain = 10.0 ** (gain_db / 20.0) if gain_db is not None else 1.0
     height = 0.5 * span
     duration = max(STEP_WINDOW / (2.0 * math.pi * speed), 3.0 * height / slew)
-    times, wave = run_step(network, height / gain, duration, output_net, scale=height)
+    times, wave = run_step(network, height / gain, duration, output_net, SLEW_POINTS,
+                           scale=height)
     return {"amplitude_v": height / gain, "duration_s": duration, "slew_rate_v_per_s": slew,
             "steepest_slope_v_per_s": steepest_slope(times, wave),
             "time_s": _plain(times), "output_v": _plain(wave)}
