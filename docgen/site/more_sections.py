@@ -99,8 +99,21 @@ def feedback(design: Design, results: Results) -> Section | None:
             out["figures"].append(figure("loop-gain.svg", "Loop gain and phase",
                                          plots.frequency_response(freq, gain, phase,
                                                                   marks=marks)))
+    _step_figure(out, section.get("step"))
     _rejection(design, out, section)
     return None if not (out["facts"] or out["figures"]) else out
+
+
+def _step_figure(out: Section, step: Any) -> None:
+    """The small step's output (``feedback.step.time_s`` / ``output_v``), from the time march."""
+    if not isinstance(step, dict):
+        return
+    time = step.get("time_s")
+    if isinstance(time, list) and time:
+        traces = named_curves(step, (("output change", "output_v"),), len(time))
+        if traces:
+            out["figures"].append(figure("step.svg", "Step response: the output's change from "
+                                         "its operating point", plots.waveform(time, traces)))
 
 
 def _offset(out: Section, offset: Any) -> None:
