@@ -40,6 +40,9 @@ class _Missing(Exception):
 def _section(results: Results, name: str) -> Mapping[str, Any]:
     section = results.get(name)
     if not isinstance(section, Mapping):
+        failed = [e for e in results.get("errors") or () if e.get("analysis") == name]
+        if failed:
+            raise _Missing(f"the '{name}' analysis failed: {failed[0].get('message')}")
         raise _Missing(f"not computed: the '{name}' analysis did not run")
     return section
 

@@ -78,6 +78,7 @@ def run(
     circuit = elaborate(design, library)
     ctx = Context(design, circuit, library, results, only, options or {})
     errors: list[dict[str, Any]] = []
+    results["errors"] = errors  # visible while later analyses run (the checks cite failures)
     for name, target in ANALYSES:
         if only is not None and name not in only:
             continue
@@ -91,7 +92,7 @@ def run(
             continue
         if section is not None:
             results[name] = section
-    results["errors"] = errors
+    results["errors"] = results.pop("errors")  # kept as the last key
     return results
 
 

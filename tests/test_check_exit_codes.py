@@ -182,3 +182,16 @@ def test_solve_prints_the_check_sections(tmp_path: Path, capsys) -> None:
     assert "Requirements" in out
     row = next(line for line in out.splitlines() if line.strip().startswith("voltage at mid"))
     assert row.split()[-1] == "fail" and "6 V .. 7 V" in row
+
+
+@pytest.mark.parametrize("status, expected, severity", [("approved", 1, "error"),
+                                                        ("draft", 0, "warning")])
+def test_an_analysis_that_fails_leaves_the_requirement_unverified(
+        tmp_path: Path, capsys, status: str, expected: int, severity: str) -> None:
+    """No bench: the response cannot be computed, so 'gain at 1 kHz' cannot be checked."""
+    path = _page(tmp_path, "d.md", DIVIDER.replace("voltage at mid", "gain at 1 kHz"), status,
+                 "> 0 dB")
+    code, out = _check(tmp_path, capsys)
+    assert code == expected
+    assert f"{path}:1:1: {severity}: ac analysis: the bench names no input" in out
+    assert "not checked: the 'ac' analysis failed: the bench names no input" in out
