@@ -67,7 +67,11 @@ def interpolate_log_f(freq: Sequence[float], values: Sequence[float], f: float) 
     if not len(freq_array) or f < freq_array[0] * (1 - 1e-9) or f > freq_array[-1] * (1 + 1e-9):
         span = f"{_hz(freq_array[0])} .. {_hz(freq_array[-1])}" if len(freq_array) else "empty"
         raise _Missing(f"{_hz(f)} is outside the computed sweep ({span})")
-    return float(np.interp(math.log10(f), np.log10(freq_array), np.asarray(values, float)))
+    points = np.array([np.nan if v is None else v for v in values], dtype=float)
+    value = float(np.interp(math.log10(f), np.log10(freq_array), points))
+    if not math.isfinite(value):
+        raise _Missing(f"the curve has no value at {_hz(f)}")
+    return value
 
 
 def band_rms(freq: Sequence[float], density: Sequence[float], low: float, high: float) -> float:
@@ -123,7 +127,15 @@ def _psrr(results: Results, f: float) -> float:
     feedback = _section(results, "feedback")
     curves = _field(feedback, "psrr_db", "feedback")
     freq = _field(feedback, "freq_hz", "feedback")
-    return min(interpolate_log_f(freq, curve, f) for curve in curves.values())
+    values = []
+    for curve in curves.values():
+        try:
+            values.append(interpolate_log_f(freq, curve, f))
+        except _Missing:  # no supply signal reaches the output: that supply does not limit
+            continue
+    if not values:
+        raise _Missing(f"no supply's signal reaches the output at {_hz(f)}")
+    return min(values)
 
 
 def _thd_at(results: Results, amplitude: float) -> float:

@@ -217,3 +217,14 @@ def test_parse_raises_only_metric_errors_with_a_real_column(text: str) -> None:
         assert 1 <= exc.col <= len(text) + 1
         return
     assert parse(metric.key).key == metric.key  # the canonical spelling reads back the same
+
+
+def test_rejection_reads_the_worst_supply_and_skips_missing_points() -> None:
+    results = {"feedback": {"freq_hz": [100.0, 1000.0],
+                            "psrr_db": {"VP": [80.0, 60.0], "VN": [None, None],
+                                        "VA": [70.0, 65.0]},
+                            "cmrr_db": [None, 50.0]}}
+    assert evaluate(parse("PSRR at 1 kHz"), results).value == pytest.approx(60.0)
+    assert evaluate(parse("PSRR at 100 Hz"), results).value == pytest.approx(70.0)
+    missing = evaluate(parse("CMRR at 100 Hz"), results)
+    assert missing.value is None and "no value at 100 Hz" in missing.reason
