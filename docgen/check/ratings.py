@@ -207,6 +207,10 @@ def cautions(design: Design, circuit: Any, results: Mapping[str, Any]) -> list[d
         elif part.kind == "opamp":
             found += opamp_supply(part, op, values.get(part.name, {}))
         elif part.model:
+            if averages.get(part.name) is not None and figures.get("power_w") is not None:
+                # the larger of the bias and the cycle-average dissipation
+                power = max(abs(figures["power_w"]), abs(averages[part.name]))
+                figures = {**figures, "power_w": power}
             found += model_ratings(part, figures, values.get(part.name, {}))
     order = {"hazard": 0, "error": 1, "warning": 2, "info": 3}
     return sorted(found, key=lambda c: (order[c["severity"]], c["line"], c["col"]))
