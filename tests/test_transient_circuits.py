@@ -140,7 +140,7 @@ def test_lc_tank_energy_is_kept_over_many_periods():
     # A lossless LC tank released from 1 V on C: the energy ½CV² + ½LI² must stay constant.
     # The trapezoidal rule keeps the energy of a linear lossless system exactly (it maps the
     # skew system by a Cayley transform); only the first, backward-Euler, step loses a little.
-    # Measured drift after that step: below 1e-12 relative over 200 periods at 40 steps per
+    # Measured drift after that step: below 1e-12 relative over 50 periods at 40 steps per
     # period (the assertion allows 1e-9).
     circuit, network = _network("""
 C1 capacitor 1u : top gnd
@@ -149,7 +149,7 @@ L1 inductor 10m : top gnd
     stepper = Stepper(network, 1, None, tolerance=10.0)  # fixed steps: error control off
     stepper.history.z[:, circuit.net_index["top"]] = 1.0
     period = 2 * math.pi * math.sqrt(10e-3 * 1e-6)
-    grid = run_grid(stepper, period / 40, 40 * 200)[:, 0, :]
+    grid = run_grid(stepper, period / 40, 40 * 50)[:, 0, :]
     voltage = grid[:, circuit.net_index["top"]]
     current = grid[:, network.solution.problem.layout.branch["L1"]]
     energy = 0.5 * 1e-6 * voltage ** 2 + 0.5 * 10e-3 * current ** 2
