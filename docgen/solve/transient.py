@@ -10,15 +10,15 @@ How (each step reuses the one set of device equations, see :mod:`docgen.solve.in
 
 1. One batched run (:func:`docgen.solve.periodic.steady_state`) drives the bench amplitude,
    the bench ``amplitudes`` list, the amplitudes of ``THD at …`` requirements and, when the
-   swing is wanted, a ladder of amplitudes from 1/50 of to the full supply span over the
+   swing is wanted, a ladder of amplitudes from 1/300 of to the full supply span over the
    small-signal gain: every amplitude is one sample of the same time march.
 2. THD of each from the FFT of its last period (:mod:`docgen.solve.distortion`).
 3. The swing search: the ladder brackets the amplitude where THD crosses the bench distortion
    limit; one more batched run of four amplitudes inside the bracket narrows it, and the
    amplitude and the output's peak-to-peak are interpolated (log THD against log amplitude)
    between the two samples either side.
-4. Clipping: over the last period, where a transistor leaves its bias region, an op-amp's
-   output stage reaches its limit, or the output comes within 1 % of the supply span of a rail.
+4. Clipping: over the last period, where a transistor leaves its bias region (or its current
+   falls below 5 % of its bias value: cut-off), an op-amp's output stage reaches its limit, or the output comes within 1 % of the supply span of a rail.
 """
 
 from __future__ import annotations
@@ -42,12 +42,13 @@ from docgen.solve.transient_amplitudes import requested_amplitudes, swing_wanted
 
 Array = np.ndarray
 
-LADDER = 6
+LADDER = 7
 REFINE = 3
 #: the swing search needs THD near the limit to a few per cent of itself, not the bench run's
 #: precision: a coarser grid, a looser step error and fewer periods keep it affordable
 SWING_SETTINGS = {"points": 64, "max_periods": 12, "relative_tolerance": 1e-3}
 RAIL_MARGIN = 0.01
+CUT_OFF_SHARE = 0.05
 NORMAL_REGION = {"npn": "active", "pnp": "active", "njfet": "saturation", "pjfet": "saturation",
                  "nmos": "saturation", "pmos": "saturation"}
 
@@ -72,7 +73,7 @@ def analyse(ctx: Any) -> dict[str, Any]:
     ladder = np.array([])
     if swing_wanted(ctx) and gain > 0:
         top = (high - low) / gain
-        ladder = np.geomspace(top / 50.0, top, LADDER)
+        ladder = np.geomspace(top / 300.0, top, LADDER)
     run = _run(ctx, network, np.concatenate([[amplitude], requested]), frequency)
     output = _net_wave(run, output_net)
     distortion = thd(output.T)
@@ -263,7 +264,7 @@ def clipping_events(run: PeriodicRun, network: SmallSignal, output_net: str, sam
             quiescent = str(part_quantities(bias, device.name)["region"][0])
             if quiescent != normal:
                 continue  # biased outside its normal region on purpose (a switch, a clamp)
-            regions = part_quantities(solution, device.name)["region"]
+            regions = _regions(solution, bias, device.name)
             for region in sorted(set(regions.tolist()) - {normal}):
                 events += _spans(regions == region, {"part": device.name, "what": region})
         elif device.kind == "opamp":
@@ -282,6 +283,17 @@ def clipping_events(run: PeriodicRun, network: SmallSignal, output_net: str, sam
             events += _spans(wave <= low + margin, {"net": output_net,
                                                     "what": "at the lower rail"})
     return sorted(events, key=lambda e: (e["phase_deg"], str(e.get("part", e.get("net")))))
+
+
+def _regions(solution: OpSolution, bias: OpSolution, name: str) -> Array:
+    """The operating point's region names at each point, with ``cut-off`` also where the
+    main current has fallen below :data:`CUT_OFF_SHARE` of its bias value (a junction still
+    above the region threshold can carry next to nothing when the signal pulls it back)."""
+    figures = part_quantities(solution, name)
+    key = "ic_a" if "ic_a" in figures else "id_a"
+    quiescent = abs(float(part_quantities(bias, name)[key][0]))
+    low = np.abs(figures[key]) < CUT_OFF_SHARE * quiescent
+    return np.where(low, "cut-off", figures["region"])
 
 
 def _opamp_limited(solution: OpSolution, device: Any) -> Array:

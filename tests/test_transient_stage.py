@@ -1,0 +1,108 @@
+"""The ``transient`` section of whole stages through the pipeline: small-signal agreement,
+swing limits of a common-emitter stage (common practice), clipping, power, determinism."""
+
+from __future__ import annotations
+
+import math
+
+import pytest
+from response_helpers import parallel
+from solver_helpers import _BUILTINS, design_text
+
+from docgen import pipeline
+from docgen.reader import read_text
+
+SECTIONS = frozenset({"op", "ac", "noise", "transient"})
+
+# Common-emitter stage, emitter resistor unbypassed (gain ≈ −RC‖RL/RE ≈ −3.2), output
+# AC-coupled into RL.  Bias: base divider 10k/2k2 from 12 V, IC ≈ 1.4 mA.
+CE = """
+VCC supply 12 V : vcc gnd
+VS signal {amplitude} 1 kHz source=50 : src gnd
+CI capacitor 100u : src b
+R1 resistor 10k : vcc b
+R2 resistor 2k2 : b gnd
+Q1 npn generic-npn : c=c b=b e=e
+RC resistor 4k7 : vcc c
+RE resistor 1k : e gnd
+CO capacitor 100u : c out
+"""
+# The same stage with RE bypassed: VE stays at its bias while the output swings, as the
+# common-practice swing limits assume (gain ≈ −gm·RC‖RL ≈ −170).
+BYPASSED = CE + "CE capacitor 1m : e gnd\n"
+BENCH = "input VS\noutput out\nload 10k\nfrequencies 10 Hz .. 100 kHz"
+
+
+def _results(amplitude: str, require: str = "", circuit: str = CE) -> dict:
+    text = design_text(circuit.format(amplitude=amplitude), bench=BENCH)
+    if require:
+        text += "\n```require\n" + require + "\n```\n"
+    out = pipeline.run(read_text(text, "test.md"), _BUILTINS, only=SECTIONS)
+    assert not out["errors"], out["errors"]
+    return out
+
+
+def test_small_amplitude_fundamental_gain_matches_small_signal_midband():
+    # Linearisation is the small-amplitude limit of the large-signal solution: at 10 mV the
+    # transient's fundamental gain must agree with the ac midband gain within 0.1 dB.
+    out = _results("10 mV")
+    transient, ac = out["transient"], out["ac"]
+    assert transient["steady_state"]["reached"]
+    assert transient["fundamental_gain_db"] == pytest.approx(ac["midband_gain_db"], abs=0.1)
+    assert transient["fundamental_gain_db"] == pytest.approx(ac["gain_at_signal_db"], abs=0.02)
+    assert transient["thd_percent"] < 0.1  # a degenerated stage at 30 mV pp out is clean
+    assert transient["clipping"] == []
+    assert len(transient["time_s"]) == len(transient["output_v"]) <= 400
+
+
+@pytest.mark.slow
+def test_common_emitter_swing_limits_follow_the_load_lines():
+    # Common practice for an AC-coupled load: the output rises until the transistor cuts off,
+    # min(VCC − VC, IC·(RC‖RL)) above its rest point, and falls until it saturates,
+    # VC − VE − VCE(sat) below it (VCE(sat) ≈ 0.2 V).  Both are first-order estimates (the
+    # coupling capacitor shifts a little while the stage clips), so 15 % is allowed.
+    out = _results("1 mV", "output swing : > 1 V", BYPASSED)
+    op, transient = out["op"], out["transient"]
+    vc, ve = op["nets"]["c"], op["nets"]["e"]
+    ic = op["parts"]["Q1"]["ic_a"]
+    positive = min(12.0 - vc, ic * parallel(4.7e3, 10e3))
+    negative = vc - ve - 0.2
+    assert transient["headroom_pos_v"] == pytest.approx(positive, rel=0.15)
+    assert transient["headroom_neg_v"] == pytest.approx(negative, rel=0.15)
+    events = {(e.get("part"), e["what"]) for e in transient["overdrive_clipping"]}
+    assert {("Q1", "cut-off"), ("Q1", "saturation")} <= events
+    # the swing within 1 % THD cannot exceed twice the smaller limit by much, and is positive
+    assert 0 < transient["max_swing_vpp"] < positive + negative
+    limit_amplitude = transient["swing_limit_amplitude_v"]
+    gain = 10 ** (out["ac"]["gain_at_signal_db"] / 20)
+    assert transient["max_swing_vpp"] == pytest.approx(2 * gain * limit_amplitude, rel=0.1)
+
+
+def test_average_power_matches_the_operating_point_at_small_amplitude():
+    # At a small signal the cycle-average power of each resistor is its bias power plus
+    # (v_rms)²/R of the signal across it, a tiny addition (Joule's law).
+    out = _results("10 mV")
+    average, op = out["transient"]["power_w"], out["op"]["parts"]
+    for part in ("R1", "R2", "RC", "RE", "Q1"):
+        assert average[part] == pytest.approx(op[part]["power_w"], rel=2e-3)
+    # Tellegen's theorem: what the sources deliver, the parts and the bench load absorb
+    output = out["transient"]["output_v"]
+    load = sum(v * v for v in output) / len(output) / 10e3
+    absorbed = sum(w for name, w in average.items() if name not in ("VCC", "VS")) + load
+    assert absorbed == pytest.approx(-average["VCC"] - average["VS"], rel=1e-6)
+
+
+def test_transient_section_is_deterministic():
+    first, second = _results("20 mV"), _results("20 mV")
+    assert first["transient"] == second["transient"]
+
+
+def test_bench_amplitudes_and_thd_requirements_are_driven():
+    text = design_text(CE.format(amplitude="10 mV"),
+                       bench=BENCH + "\namplitudes 50 mV, 0.2 V rms")
+    text += "\n```require\nTHD at 0.1 V : < 5 %\n```\n"
+    out = pipeline.run(read_text(text, "test.md"), _BUILTINS, only=SECTIONS)
+    rows = out["transient"]["amplitudes"]
+    assert [r["amplitude_v"] for r in rows] == pytest.approx([0.05, 0.1, 0.2 * math.sqrt(2)])
+    levels = [r["thd_percent"] for r in rows]
+    assert levels == sorted(levels)  # distortion grows with the drive
