@@ -18,7 +18,8 @@ How (each step reuses the one set of device equations, see :mod:`docgen.solve.in
    amplitude and the output's peak-to-peak are interpolated (log THD against log amplitude)
    between the two samples either side.
 4. Clipping: over the last period, where a transistor leaves its bias region (or its current
-   falls below 5 % of its bias value: cut-off), an op-amp's output stage reaches its limit, or the output comes within 1 % of the supply span of a rail.
+   falls below 5 % of its bias value: cut-off), an op-amp's output stage reaches its limit,
+   or the output comes within 1 % of the supply span of a rail.
 """
 
 from __future__ import annotations
