@@ -3,8 +3,11 @@ swing limits of a common-emitter stage (common practice), clipping, power, deter
 
 from __future__ import annotations
 
+import json
 import math
+from importlib import resources
 
+import jsonschema
 import pytest
 from response_helpers import parallel
 from solver_helpers import _BUILTINS, design_text
@@ -12,6 +15,8 @@ from solver_helpers import _BUILTINS, design_text
 from docgen import pipeline
 from docgen.reader import read_text
 
+SCHEMA = json.loads(resources.files("docgen").joinpath("schema/results.schema.json")
+                    .read_text(encoding="utf-8"))
 SECTIONS = frozenset({"op", "ac", "noise", "transient"})
 
 # Common-emitter stage, emitter resistor unbypassed (gain ≈ −RC‖RL/RE ≈ −3.2), output
@@ -67,6 +72,7 @@ def test_common_emitter_swing_limits_follow_the_load_lines():
     ic = op["parts"]["Q1"]["ic_a"]
     positive = min(12.0 - vc, ic * parallel(4.7e3, 10e3))
     negative = vc - ve - 0.2
+    jsonschema.validate(json.loads(json.dumps(out)), SCHEMA)
     assert transient["headroom_pos_v"] == pytest.approx(positive, rel=0.15)
     assert transient["headroom_neg_v"] == pytest.approx(negative, rel=0.15)
     events = {(e.get("part"), e["what"]) for e in transient["overdrive_clipping"]}
@@ -92,9 +98,10 @@ def test_average_power_matches_the_operating_point_at_small_amplitude():
     assert absorbed == pytest.approx(-average["VCC"] - average["VS"], rel=1e-6)
 
 
-def test_transient_section_is_deterministic():
+def test_transient_section_is_deterministic_and_fits_the_schema():
     first, second = _results("20 mV"), _results("20 mV")
     assert first["transient"] == second["transient"]
+    jsonschema.validate(json.loads(json.dumps(first)), SCHEMA)
 
 
 def test_bench_amplitudes_and_thd_requirements_are_driven():

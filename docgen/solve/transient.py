@@ -14,7 +14,7 @@ How (each step reuses the one set of device equations, see :mod:`docgen.solve.in
    small-signal gain: every amplitude is one sample of the same time march.
 2. THD of each from the FFT of its last period (:mod:`docgen.solve.distortion`).
 3. The swing search: the ladder brackets the amplitude where THD crosses the bench distortion
-   limit; one more batched run of four amplitudes inside the bracket narrows it, and the
+   limit; one more batched run of three amplitudes inside the bracket narrows it, and the
    amplitude and the output's peak-to-peak are interpolated (log THD against log amplitude)
    between the two samples either side.
 4. Clipping: over the last period, where a transistor leaves its bias region (or its current
