@@ -23,6 +23,7 @@ SECTION_PRINTERS: list[tuple[str, str]] = [
     ("op", "docgen.report:print_op"),
     ("ac", "docgen.report_small_signal:print_ac"),
     ("noise", "docgen.report_small_signal:print_noise"),
+    ("transient", "docgen.report_large_signal:print_transient"),
     ("feedback", "docgen.report_feedback:print_feedback"),
     ("checks", "docgen.report_checks:print_checks"),
     ("cautions", "docgen.report_checks:print_cautions"),

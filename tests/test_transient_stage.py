@@ -113,3 +113,13 @@ def test_bench_amplitudes_and_thd_requirements_are_driven():
     assert [r["amplitude_v"] for r in rows] == pytest.approx([0.05, 0.1, 0.2 * math.sqrt(2)])
     levels = [r["thd_percent"] for r in rows]
     assert levels == sorted(levels)  # distortion grows with the drive
+
+
+def test_terminal_report_shows_the_large_signal_figures():
+    from docgen.report import render
+
+    out = _results("20 mV")
+    text = render(out)
+    assert "Large signal at 20 mV peak, 1 kHz" in text
+    assert f"{out['transient']['thd_percent']:.4g} %" in text
+    assert "trapezoidal rule" in text
