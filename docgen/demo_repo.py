@@ -94,7 +94,14 @@ def _script(read: Callable[[str], str]) -> list[Step]:
                ("R2      resistor   47k 1% 0.125 W              : b1 gnd",
                 "R2      resistor   18k 1% 0.125 W              : b1 gnd"))
     # first approvals, before the chain's noise budget added a requirement to three stages
-    buffer_09 = with_header(_without_line(buffer, "input noise 20 Hz .. 20 kHz :"),
+    buffer_old = _without_paragraph(replaced(
+        buffer,
+        ("RG      resistor   12M 5% 0.125 W ", "RG      resistor   10M 5% 0.125 W "),
+        ("RS      resistor   4k7 1% 0.125 W ", "RS      resistor   2k2 1% 0.125 W "),
+        ("gain at 1 kHz      : > -3 dB across boards", "gain at 1 kHz      : > -3 dB"),
+        ("low corner         : < 18 Hz across boards", "low corner         : < 18 Hz")),
+        "Tomasz asked whether JFET spread")
+    buffer_09 = with_header(_without_line(buffer_old, "input noise 20 Hz .. 20 kHz :"),
                             approved="2026-09-14")
     preamp_09 = with_header(_without_line(preamp, "input noise 20 Hz .. 20 kHz :"),
                             approved="2026-09-21")
@@ -153,8 +160,15 @@ def _script(read: Callable[[str], str]) -> list[Step]:
         Step("2026-11-20T11:00:00+00:00", "Ines", "Signal-chain overview page",
              {"signal-chain.md": lambda: read("signal-chain.md")}),
         Step("2026-11-24T15:45:00+00:00", "Ines",
-             "Noise budget: noise requirements for the buffer and the mic preamp; re-approved",
-             {"hydrophone-buffer.md": lambda: buffer, "mic-preamp.md": lambda: mic}),
+             "Noise budget: noise requirements for the buffer and the mic preamp; mic preamp "
+             "re-approved, buffer back to review",
+             {"hydrophone-buffer.md": lambda: with_header(buffer_old, status="review",
+                                                          approved=None),
+              "mic-preamp.md": lambda: mic}),
+        Step("2026-11-30T10:05:00+00:00", "Hedda",
+             "Buffer: RS 2.2k → 4.7k and RG 10M → 12M so gain and corner hold on every board; "
+             "re-approved",
+             {"hydrophone-buffer.md": lambda: buffer}),
     ]
 
 
@@ -166,6 +180,16 @@ def _without_line(text: str, start: str) -> str:
         raise DemoScriptError(f"expected exactly one line starting {start!r}")
     del lines[found[0]]
     return "\n".join(lines)
+
+
+def _without_paragraph(text: str, start: str) -> str:
+    """``text`` without the one paragraph (lines up to a blank line) that starts with ``start``."""
+    paragraphs = text.split("\n\n")
+    found = [i for i, block in enumerate(paragraphs) if block.startswith(start)]
+    if len(found) != 1:
+        raise DemoScriptError(f"expected exactly one paragraph starting {start!r}")
+    del paragraphs[found[0]]
+    return "\n\n".join(paragraphs)
 
 
 def _environment(step: Step) -> dict[str, str]:

@@ -41,7 +41,7 @@ def test_history_has_tweaks_a_rewiring_a_rename_approvals_and_several_authors(de
     statuses = [read_text(git(demo, "show", f"{sha}:designs/hydrophone-buffer.md"), "b").header
                 .status for sha in git(demo, "log", "--format=%H", "--",
                                        "designs/hydrophone-buffer.md").split()]
-    assert statuses[::-1] == ["draft", "review", "approved", "approved"]  # and re-approved
+    assert statuses[::-1] == ["draft", "review", "approved", "review", "approved"]
 
 
 def test_every_revision_of_every_page_reads_without_errors(demo: Path) -> None:
