@@ -160,7 +160,7 @@ def test_divider_sensitivities_and_worst_case_are_the_formulas() -> None:
     high = 10.0 * 5e3 * 1.01 / (10e3 * 0.99 + 5e3 * 1.01)
     assert corner["low"] == pytest.approx(low, rel=1e-5)
     assert corner["high"] == pytest.approx(high, rel=1e-5)
-    assert corner["low_corner"] == {"R1": 10100.0, "R2": 4950.0}
+    assert corner["low_corner"] == pytest.approx({"R1": 10100.0, "R2": 4950.0})
 
 
 def test_divider_yield_follows_the_triangular_distribution() -> None:

@@ -33,6 +33,7 @@ import numpy as np
 from docgen.elaborate import Circuit
 from docgen.metrics import Metric, parse
 from docgen.solve import curves, phasor, spectra
+from docgen.solve.board_sweep import midband_and_corners
 from docgen.solve.linearise import SmallSignal, linearise
 from docgen.solve.noise import noise_band, noise_sources
 from docgen.solve.operating_point import OpSolution, part_quantities, solve_op
@@ -42,10 +43,10 @@ Array = np.ndarray
 
 #: Points per decade of the coarse per-board sweep used to bracket midband and corners.
 SWEEP_POINTS_PER_DECADE = 5
-#: Golden-section steps narrowing the peak's bracket (0.4 decade × 0.618^30 ≈ 2e-7 decade).
-PEAK_ROUNDS = 30
-#: Regula falsi rounds narrowing each corner's bracket (superlinear; 12 reach 1e-9 dB).
-CORNER_ROUNDS = 12
+#: Complex matrix entries per batched solve: samples are solved in chunks this size so the
+#: working arrays are reused from chunk to chunk (touching large fresh arrays can cost more
+#: than the solves themselves).
+CHUNK_ENTRIES = 1 << 18
 #: Points per decade of the per-board noise grid (the noise section's own grid is finer;
 #: the rms of a board differs from it by well under 0.1 %).
 NOISE_POINTS_PER_DECADE = 10
@@ -177,8 +178,7 @@ def _small_signal(network: SmallSignal, metrics: Sequence[Metric], ports: tuple[
     points = sorted({m.args.get("freq", signal_hz) for m in metrics if m.form in AC_POINT_FORMS})
     out: dict[str, Array] = {}
     if points:
-        ports_at = _solve_or_nan(lambda: port_curves(network, np.array(points), input_part,
-                                                     output_net), network.samples, len(points))
+        ports_at = _port_curves(network, np.array(points), input_part, output_net)
         for metric in metrics:
             if metric.form in AC_POINT_FORMS:
                 column = points.index(metric.args.get("freq", signal_hz))
@@ -191,13 +191,37 @@ def _small_signal(network: SmallSignal, metrics: Sequence[Metric], ports: tuple[
     return out
 
 
-def _solve_or_nan(solve: Any, samples: int, count: int) -> Any:
-    """``solve()``; on a singular batch, NaN curves of the expected shape."""
-    try:
-        return solve()
-    except np.linalg.LinAlgError:
-        nan = np.full((samples, count), np.nan + 0j)
-        return {"gain": nan, "gain_from_input_net": nan, "zin": nan, "zout": nan}
+def _chunks(samples: int, frequencies: int, size: int) -> list[slice]:
+    """Sample ranges of at most :data:`CHUNK_ENTRIES` complex matrix entries each."""
+    per = max(1, CHUNK_ENTRIES // max(1, frequencies * size * size))
+    return [slice(i, min(i + per, samples)) for i in range(0, samples, per)]
+
+
+def _rows(network: SmallSignal, rows: slice) -> SmallSignal:
+    """The network (and its operating point) of the samples in ``rows`` only."""
+    solution, dc = network.solution, network.solution.dc
+    sub_dc = replace(dc, x=dc.x[rows], converged=dc.converged[rows], method=dc.method[rows],
+                     iterations=dc.iterations[rows], unsettled=dc.unsettled[rows],
+                     singular=dc.singular[rows])
+    index = np.arange(network.samples)[rows]
+    sub = OpSolution(solution.circuit, solution.problem.subset(index), sub_dc,
+                     {name: value[rows] for name, value in solution.currents.items()})
+    return replace(network, solution=sub, G=network.G[rows], C=network.C[rows])
+
+
+def _port_curves(network: SmallSignal, freq: Array, input_part: str, output_net: str
+                 ) -> dict[str, Array]:
+    """:func:`port_curves` chunk by chunk; NaN for a chunk whose system is singular."""
+    out = {key: np.full((network.samples, len(freq)), np.nan + 0j)
+           for key in ("gain", "gain_from_input_net", "zin", "zout")}
+    for rows in _chunks(network.samples, 2 * len(freq), network.size):
+        try:
+            found = port_curves(_rows(network, rows), freq, input_part, output_net)
+        except np.linalg.LinAlgError:
+            continue
+        for key, value in found.items():
+            out[key][rows] = value
+    return out
 
 
 def _point_value(metric: Metric, ports_at: Mapping[str, Array], column: int,
@@ -215,11 +239,17 @@ def _point_value(metric: Metric, ports_at: Mapping[str, Array], column: int,
 
 
 def _gain_db(network: SmallSignal, freq: Array, input_part: str, output_net: str) -> Array:
-    """|gain| in dB, ``freq`` ``(F,)`` or ``(S, F)``; NaN for a singular batch."""
-    try:
-        return _db(transfer(network, freq, input_part, output_net))
-    except np.linalg.LinAlgError:
-        return np.full((network.samples, np.shape(freq)[-1]), np.nan)
+    """|gain| in dB, ``freq`` ``(F,)`` or ``(S, F)``, chunk by chunk; NaN where singular."""
+    freq = np.asarray(freq, dtype=float)
+    out = np.full((network.samples, freq.shape[-1]), np.nan)
+    for rows in _chunks(network.samples, freq.shape[-1], network.size):
+        part = replace(network, G=network.G[rows], C=network.C[rows])  # transfer reads G, C
+        try:
+            out[rows] = _db(transfer(part, freq[rows] if freq.ndim == 2 else freq, input_part,
+                                     output_net))
+        except np.linalg.LinAlgError:
+            continue
+    return out
 
 
 def _sweep_metrics(network: SmallSignal, metrics: Sequence[Metric], input_part: str,
@@ -232,86 +262,9 @@ def _sweep_metrics(network: SmallSignal, metrics: Sequence[Metric], input_part: 
         """The gain (dB) of each board at its own frequency ``10**log_f`` (``(S,)``)."""
         return _gain_db(network, 10.0 ** log_f[:, None], input_part, output_net)[:, 0]
 
-    peak_index = np.argmax(np.where(np.isnan(gain), -np.inf, gain), axis=1)
-    peak_f, peak_g = _refine_peaks(freq, gain, peak_index, evaluate_db)
-    level = peak_g - curves.CORNER_DROP_DB
-    found = {"midband_gain": peak_g,
-             "low_corner": _corners(freq, gain, peak_index, peak_f, peak_g, level, -1,
-                                    evaluate_db),
-             "high_corner": _corners(freq, gain, peak_index, peak_f, peak_g, level, 1,
-                                     evaluate_db)}
+    peak, low, high = midband_and_corners(freq, gain, evaluate_db)
+    found = {"midband_gain": peak, "low_corner": low, "high_corner": high}
     return {m.key: found[m.form] for m in metrics if m.form in SWEEP_FORMS}
-
-
-def _refine_peaks(freq: Array, gain: Array, index: Array, evaluate_db: Any
-                  ) -> tuple[Array, Array]:
-    """Each board's largest gain: golden-section search between its sweep neighbours where
-    the largest sweep point is interior (never below the sweep's own value)."""
-    rows = np.arange(len(index))
-    best_f, best_g = freq[index].astype(float), gain[rows, index]
-    interior = (index > 0) & (index < len(freq) - 1)
-    if not interior.any():
-        return best_f, best_g
-    log_f = np.log10(freq)
-    a = log_f[np.clip(index - 1, 0, None)]
-    b = log_f[np.clip(index + 1, None, len(freq) - 1)]
-    ratio = (math.sqrt(5.0) - 1.0) / 2.0
-    c, d = b - ratio * (b - a), a + ratio * (b - a)
-    gain_c, gain_d = evaluate_db(c), evaluate_db(d)
-    for _ in range(PEAK_ROUNDS):
-        left = gain_c > gain_d  # the peak lies in [a, d]
-        a, b = np.where(left, a, c), np.where(left, d, b)
-        c_new = np.where(left, b - ratio * (b - a), d)
-        d_new = np.where(left, c, a + ratio * (b - a))
-        probe = np.where(left, c_new, d_new)
-        gain_probe = evaluate_db(probe)
-        gain_c, gain_d = (np.where(left, gain_probe, gain_d), np.where(left, gain_c, gain_probe))
-        c, d = c_new, d_new
-    top = np.maximum(gain_c, gain_d)
-    top_f = np.where(gain_c >= gain_d, c, d)
-    better = interior & (top > best_g)
-    return np.where(better, 10.0 ** top_f, best_f), np.where(better, top, best_g)
-
-
-def _corners(freq: Array, gain: Array, peak_index: Array, peak_f: Array, peak_g: Array,
-             level: Array, step: int, evaluate_db: Any) -> Array:
-    """The −3.01 dB crossing nearest the peak on one side (NaN where the sweep has none).
-
-    The sweep brackets the crossing; regula falsi with the Illinois modification (in log f
-    against dB) narrows each board's bracket, one frequency per board per round.
-    """
-    count = len(freq)
-    positions = np.arange(count)
-    side = positions < peak_index[:, None] if step < 0 else positions > peak_index[:, None]
-    below = side & (gain < level[:, None])
-    has = below.any(axis=1)
-    if step < 0:
-        outer = np.where(has, count - 1 - np.argmax(below[:, ::-1], axis=1), 0)
-    else:
-        outer = np.where(has, np.argmax(below, axis=1), 0)
-    inner = np.clip(outer - step, 0, count - 1)
-    rows = np.arange(len(peak_index))
-    log_in = np.log10(np.where(inner == peak_index, peak_f, freq[inner]))
-    res_in = np.where(inner == peak_index, peak_g, gain[rows, inner]) - level  # ≥ 0
-    log_out, res_out = np.log10(freq[outer]), gain[rows, outer] - level  # < 0
-    previous = np.zeros(len(rows), dtype=bool)  # the inner end moved last round
-    started = False
-    for _ in range(CORNER_ROUNDS):
-        with np.errstate(divide="ignore", invalid="ignore"):
-            guess = log_out + res_out / (res_out - res_in) * (log_in - log_out)
-        guess = np.where(np.isfinite(guess), guess, 0.5 * (log_in + log_out))
-        res = evaluate_db(guess) - level
-        above = res >= 0
-        # Illinois: when the same end moves twice running, halve the other end's residual.
-        again = (above == previous) & started
-        res_out = np.where(above, np.where(again, 0.5 * res_out, res_out), res)
-        res_in = np.where(above, res, np.where(again, 0.5 * res_in, res_in))
-        log_out, log_in = np.where(above, log_out, guess), np.where(above, guess, log_in)
-        previous, started = above, True
-    with np.errstate(divide="ignore", invalid="ignore"):
-        final = log_out + res_out / (res_out - res_in) * (log_in - log_out)
-    final = np.where(np.isfinite(final), final, 0.5 * (log_in + log_out))
-    return np.where(has, 10.0 ** final, np.nan)
 
 
 # ------------------------------------------------------------------------ noise
@@ -349,17 +302,21 @@ def _densities(network: SmallSignal, freq: Array, input_part: str, output_net: s
                ) -> tuple[Array, Array]:
     """(output, input-referred) noise densities ``(S, F)``.  One adjoint solve per frequency
     gives every source's transfer and the gain (the transfer from the signal's branch row)."""
-    try:
-        sensitivity = phasor.adjoint(network.G, network.C, freq,
-                                     network.unit(network.row(output_net)))
-    except np.linalg.LinAlgError:
-        nan = np.full((network.samples, len(freq)), np.nan)
-        return nan, nan
     sources = noise_sources(network, freq)
     patterns = np.stack([source.pattern for source in sources])  # (P, S, K)
     psd = np.stack([source.psd for source in sources])  # (P, S, F)
-    total = np.sum(np.abs(np.einsum("sfk,psk->psf", sensitivity, patterns)) ** 2 * psd, axis=0)
-    gain = np.abs(sensitivity[..., network.branch_row(input_part)])
+    probe = network.unit(network.row(output_net))
+    branch = network.branch_row(input_part)
+    total = np.full((network.samples, len(freq)), np.nan)
+    gain = np.full((network.samples, len(freq)), np.nan)
+    for rows in _chunks(network.samples, len(freq), network.size):
+        try:
+            sensitivity = phasor.adjoint(network.G[rows], network.C[rows], freq, probe[rows])
+        except np.linalg.LinAlgError:
+            continue
+        transfers = np.einsum("sfk,psk->psf", sensitivity, patterns[:, rows])
+        total[rows] = np.sum(np.abs(transfers) ** 2 * psd[:, rows], axis=0)
+        gain[rows] = np.abs(sensitivity[..., branch])
     with np.errstate(divide="ignore", invalid="ignore"):
         return np.sqrt(total), np.sqrt(total) / gain
 

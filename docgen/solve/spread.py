@@ -48,7 +48,6 @@ from docgen.elaborate import Circuit, Variation, variations
 from docgen.metrics import Metric
 from docgen.solve import board_metrics, sampling
 from docgen.solve.operating_point import require_converged, solve_op
-from docgen.units import round_results
 
 Array = np.ndarray
 
@@ -279,8 +278,7 @@ def _worst_case(ctx: Any, metrics: Sequence[Metric], varied: Sequence[Variation]
                                                                          v.low)
         spans.append(slice(at, at + len(corners)))
         at += len(corners)
-    batch = board_metrics.evaluate(ctx.circuit, [m for m, _ in plans], overrides, ports=ports,
-                                   start=start, phase_reference=references)
+    batch = _by_cost(ctx.circuit, plans, spans, overrides, ports, start, references)
     out = {}
     for (metric, chosen), rows in zip(plans, spans, strict=True):
         values = batch.values[metric.key][rows]
@@ -298,6 +296,38 @@ def _worst_case(ctx: Any, metrics: Sequence[Metric], varied: Sequence[Variation]
             "unsolved": int(np.sum(~batch.converged[rows])),
         }
     return out
+
+
+@dataclass
+class _Corners:
+    """The worst-case batch's values (``NaN`` outside each metric's own rows)."""
+
+    values: dict[str, Array]
+    converged: Array
+
+
+def _by_cost(circuit: Circuit, plans: list, spans: list[slice], overrides: dict, ports: Any,
+             start: Any, references: dict[str, float]) -> _Corners:
+    """Each metric on its own corner rows only: one batch per kind of metric (operating point
+    and single frequencies together; the sweep's and the noise's costly ones apart)."""
+    total = spans[-1].stop
+    values = {metric.key: np.full(total, np.nan) for metric, _ in plans}
+    converged = np.ones(total, dtype=bool)
+    groups: dict[str, list[int]] = {}
+    for i, (metric, _) in enumerate(plans):
+        kind = ("sweep" if metric.form in board_metrics.SWEEP_FORMS else
+                "noise" if metric.form in board_metrics.NOISE_FORMS else "point")
+        groups.setdefault(kind, []).append(i)
+    for members in groups.values():
+        rows = np.concatenate([np.arange(spans[i].start, spans[i].stop) for i in members])
+        batch = board_metrics.evaluate(circuit, [plans[i][0] for i in members],
+                                       {k: v[rows] for k, v in overrides.items()}, ports=ports,
+                                       start=start, phase_reference=references)
+        converged[rows] = batch.converged
+        for i in members:
+            key = plans[i][0].key
+            values[key][rows] = batch.values[key]
+    return _Corners(values, converged)
 
 
 def _effect(v: Variation, sensitivity: float) -> float:
@@ -355,8 +385,8 @@ def analyse(ctx: Any) -> dict[str, Any]:
     boards_ok = batch.converged[rows.boards]
     samples = {key: column[rows.boards] for key, column in values.items()}
     sensitivities = _sensitivities(metrics, params, values, rows)
-    plain_samples = round_results(samples)
-    overall, each = _yield(ctx.design, plain_samples)
+    overall, each = _yield(ctx.design, {key: board_metrics.finite_or_none(column)
+                                        for key, column in samples.items()})
     section: dict[str, Any] = {
         "boards": int(bench.boards), "seed": int(bench.seed), "distribution": bench.distribution,
         "unsolved": int(np.sum(~boards_ok)),
@@ -376,5 +406,23 @@ def analyse(ctx: Any) -> dict[str, Any]:
     }
     if ambient is not None:
         section["temperature"] = _temperature(metrics, values, rows, ambient, batch.converged)
-    return round_results(section)
+    return _plain(section)
+
+
+def _plain(item: Any) -> Any:
+    """JSON-ready data: arrays become lists, NaN and infinities ``None`` (files round later,
+    where results are written; the yield and checks see the values as solved)."""
+    if isinstance(item, dict):
+        return {key: _plain(value) for key, value in item.items()}
+    if isinstance(item, np.ndarray):
+        if item.dtype.kind == "f":
+            return board_metrics.finite_or_none(item)
+        return item.tolist()
+    if isinstance(item, list | tuple):
+        return [_plain(value) for value in item]
+    if isinstance(item, float | np.floating):
+        return float(item) if math.isfinite(item) else None
+    if isinstance(item, np.integer):
+        return int(item)
+    return item
 
