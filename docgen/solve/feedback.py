@@ -20,6 +20,7 @@ import numpy as np
 
 from docgen.diagnostics import AnalysisError, Span
 from docgen.solve import curves, loopgain, rejection
+from docgen.solve.integrate import StepFailure
 from docgen.solve.linearise import SmallSignal, nominal_network
 from docgen.solve.offset import offset_budget
 from docgen.solve.response import endpoints, sweep
@@ -233,7 +234,11 @@ def _step(ctx: Any, network: SmallSignal, output_net: str, section: dict[str, An
     duration = STEP_WINDOW / (2.0 * math.pi * speed)
     gain_db = (ctx.results.get("ac") or {}).get("midband_gain_db")
     scale = amplitude * 10.0 ** (gain_db / 20.0) if gain_db is not None else amplitude
-    times, wave = run_step(network, amplitude, duration, output_net, scale=scale)
+    try:
+        times, wave = run_step(network, amplitude, duration, output_net, scale=scale)
+    except StepFailure as exc:
+        return {"amplitude_v": amplitude, "duration_s": duration,
+                "reason": f"not computed: the time march failed ({exc})"}
     figures = step_figures(times, wave, SETTLING_BAND)
     return {"amplitude_v": amplitude, "duration_s": duration, "time_s": _plain(times),
             "output_v": _plain(wave), "method": "BDF2 time march of the operating point's "
@@ -256,8 +261,11 @@ def _slew_step(ctx: Any, network: SmallSignal, output_net: str, section: dict[st
     gain = 10.0 ** (gain_db / 20.0) if gain_db is not None else 1.0
     height = 0.5 * span
     duration = max(STEP_WINDOW / (2.0 * math.pi * speed), 3.0 * height / slew)
-    times, wave = run_step(network, height / gain, duration, output_net, SLEW_POINTS,
-                           scale=height)
+    try:
+        times, wave = run_step(network, height / gain, duration, output_net, SLEW_POINTS,
+                               scale=height)
+    except StepFailure:
+        return None
     return {"amplitude_v": height / gain, "duration_s": duration, "slew_rate_v_per_s": slew,
             "steepest_slope_v_per_s": steepest_slope(times, wave),
             "time_s": _plain(times), "output_v": _plain(wave)}
