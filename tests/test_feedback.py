@@ -379,3 +379,28 @@ U1  opamp    clean : in+=in in-=out out=out v+=vp v-=vn
     text = render(out)
     assert "phase margin" in text and "90 °" in text
     assert "Output offset budget at out" in text
+
+
+def test_capacitive_bench_load_adds_the_output_pole_to_the_loop():
+    """A follower with output resistance Ro driving the bench load RL‖CL: the loop gains a
+    pole at 1/(2π·(Ro‖RL)·CL) and the divider RL/(Ro + RL), so T = A0·RL/(Ro + RL) /
+    ((1 + jf/f1)(1 + jf/f2)) (Horowitz & Hill, *The Art of Electronics*, capacitive loads,
+    from memory); crossover by scipy.optimize.brentq."""
+    circuit = """
+VP  supply   15 V  : vp gnd
+VN  supply   15 V  : gnd vn
+VS  signal   10 mV 1 kHz : in gnd
+U1  opamp    driver : in+=in in-=out out=out v+=vp v-=vn
+"""
+    models = CLEAN.replace("clean", "driver") + " output_resistance=100"
+    section = feedback(circuit, models, "input VS\noutput out\nload 10k || 10n")
+    ro, rl, cl = 100.0, 10e3, 10e-9
+    f2 = 1.0 / (TWO_PI * (ro * rl / (ro + rl)) * cl)
+
+    def loop(f):
+        return A0 * rl / (ro + rl) / ((1 + 1j * f / F_POLE) * (1 + 1j * f / f2))
+
+    crossover = optimize.brentq(lambda f: abs(loop(f)) - 1.0, 1e3, 1e8, xtol=1e-6)
+    margin = 180.0 + math.degrees(np.angle(loop(crossover)))
+    assert section["crossover_hz"] == pytest.approx(crossover, rel=1e-6)
+    assert section["phase_margin_deg"] == pytest.approx(margin, abs=1e-4)
