@@ -30,6 +30,9 @@ def _loops(section: dict[str, Any]) -> list[str]:
     out += table(["loop at", "low-frequency T", "crossover", "phase margin", "gain margin"],
                  rows)
     for loop in loops:
+        if not loop.get("negative_feedback", True):
+            out.append(f"  {loop['part']}: WARNING: positive feedback at low frequency; the "
+                       "margins do not describe stability")
         out += [f"  {loop['part']}: {line}" for line in
                 _notes(loop, [("crossover", "crossover_reason"),
                               ("gain margin", "gain_margin_reason")])]

@@ -119,6 +119,7 @@ RE  resistor 1k     : e s
     rb, re = 10e3, 1e3
     expected = gm * (re * (r_pi + rb) / (re + r_pi + rb)) * r_pi / (r_pi + rb)
     assert section["loop_part"] == "Q1"
+    assert section["loops"][0]["negative_feedback"] is True
     assert 10 ** (section["loops"][0]["dc_loop_gain_db"] / 20) == pytest.approx(expected,
                                                                                 rel=1e-6)
 

@@ -100,7 +100,8 @@ def _loops(ctx: Any, network: SmallSignal, freq: Array) -> dict[str, Any]:
         peak = int(np.argmax(np.abs(t)))
         loops.append({"part": part, "gain_db": _plain(curves.magnitude_db(t)),
                       "phase_deg": _plain(curves.anchored_phase_deg(t, peak)),
-                      "dc_loop_gain_db": _number(curves.magnitude_db(t[0])), **found})
+                      "dc_loop_gain_db": _number(curves.magnitude_db(t[0])),
+                      "negative_feedback": bool(t[0].real > 0.0), **found})
     out: dict[str, Any] = {"loop_freq_hz": _plain(loop_freq), "loops": loops,
                            "loop_method": "return ratio of the controlled source (Bode)"}
     first = loops[0] if loops else {}
