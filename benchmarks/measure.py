@@ -1,0 +1,61 @@
+"""Timing helpers for ``benchmarks/run.py``: medians, child processes, the machine line."""
+
+from __future__ import annotations
+
+import json
+import os
+import platform
+import resource
+import statistics
+import subprocess
+import sys
+import time
+from collections.abc import Callable, Sequence
+from pathlib import Path
+from typing import Any
+
+HERE = Path(__file__).resolve().parent
+
+
+def machine() -> str:
+    """Cores, Python, numpy and scipy versions, and the load at the start."""
+    import numpy
+    import scipy
+
+    load = os.getloadavg()[0] if hasattr(os, "getloadavg") else float("nan")
+    return (f"machine: {os.cpu_count()} cores ({platform.machine()}), Python "
+            f"{platform.python_version()}, numpy {numpy.__version__}, scipy {scipy.__version__}, "
+            f"load average {load:.1f} at start")
+
+
+def median(values: Sequence[float]) -> float:
+    """The median, or NaN for no values."""
+    return statistics.median(values) if values else float("nan")
+
+
+def timed(run: Callable[[], Any]) -> tuple[float, float, Any]:
+    """Wall and CPU seconds of one call (CPU of this process only), and its result."""
+    wall, cpu = time.perf_counter(), time.process_time()
+    result = run()
+    return time.perf_counter() - wall, time.process_time() - cpu, result
+
+
+def command(args: Sequence[str], cwd: Path | str | None = None) -> tuple[float, float, str]:
+    """Run a command in a fresh process: wall seconds, CPU seconds of it and its children
+    (user + system), and its stdout.  Raise with its stderr when it exits above 1 (exit 1 is a
+    failing requirement, which a benchmark record may well have)."""
+    before = resource.getrusage(resource.RUSAGE_CHILDREN)
+    start = time.perf_counter()
+    done = subprocess.run(list(args), cwd=cwd, capture_output=True, text=True)
+    wall = time.perf_counter() - start
+    after = resource.getrusage(resource.RUSAGE_CHILDREN)
+    if done.returncode > 1:
+        raise RuntimeError(f"{' '.join(args)} exited {done.returncode}:\n{done.stderr[-2000:]}")
+    cpu = (after.ru_utime - before.ru_utime) + (after.ru_stime - before.ru_stime)
+    return wall, cpu, done.stdout
+
+
+def child(*args: str, cwd: Path | str | None = None) -> dict[str, Any]:
+    """Run ``benchmarks/run.py --child ARGS`` in a fresh process; return the JSON it prints."""
+    _, _, out = command([sys.executable, str(HERE / "run.py"), "--child", *args], cwd=cwd)
+    return json.loads(out.strip().splitlines()[-1])
