@@ -55,7 +55,7 @@ OP_FORMS = {"net_voltage", "supply_current", "supply_power"}
 AC_POINT_FORMS = {"gain_at", "phase_at", "zin", "zout", "zin_at", "zout_at"}
 SWEEP_FORMS = {"midband_gain", "low_corner", "high_corner"}
 NOISE_FORMS = {"input_noise", "input_noise_band", "input_noise_density",
-               "output_noise_density"}
+               "output_noise_density", "snr", "noise_figure"}
 
 
 def supported(metric: Metric) -> bool:
@@ -272,53 +272,88 @@ def _sweep_metrics(network: SmallSignal, metrics: Sequence[Metric], input_part: 
 
 def _noise_metrics(network: SmallSignal, metrics: Sequence[Metric], input_part: str,
                    output_net: str) -> dict[str, Array]:
-    """Input-referred noise per board: the noise section's sources and integration, on a
+    """Noise figures per board: the noise section's sources, integration and definitions, on a
     grid of :data:`NOISE_POINTS_PER_DECADE` (each band solved once however often named)."""
     bench = network.solution.circuit.bench
     points = min(bench.points_per_decade, NOISE_POINTS_PER_DECADE)
-    solved: dict[tuple[float, ...], tuple[Array, Array]] = {}
+    solved: dict[tuple[float, ...], _Noise] = {}
     out: dict[str, Array] = {}
     for metric in metrics:
-        if metric.form in ("input_noise", "input_noise_band"):
+        if metric.form in ("input_noise_density", "output_noise_density"):
+            band: tuple[float, ...] = (metric.args["freq"],)
+            grid = np.array(band)
+        else:
             band = tuple(metric.args.get("band") or noise_band(bench))
             grid = curves.log_sweep(band[0], band[1], points)
-        else:
-            band = (metric.args["freq"],)
-            grid = np.array(band)
         if band not in solved:
             solved[band] = _densities(network, grid, input_part, output_net)
-        output_density, input_density = solved[band]
-        if metric.form == "output_noise_density":
-            out[metric.key] = output_density[:, 0]
-        elif metric.form == "input_noise_density":
-            out[metric.key] = input_density[:, 0]
-        else:
-            with np.errstate(invalid="ignore"):
-                out[metric.key] = np.asarray(spectra.rms(grid, input_density ** 2), dtype=float)
+        noise = solved[band]
+        with np.errstate(invalid="ignore", divide="ignore"):
+            out[metric.key] = _noise_figure_of(metric, network, noise, grid, input_part,
+                                               output_net)
     return out
 
 
-def _densities(network: SmallSignal, freq: Array, input_part: str, output_net: str
-               ) -> tuple[Array, Array]:
-    """(output, input-referred) noise densities ``(S, F)``.  One adjoint solve per frequency
-    gives every source's transfer and the gain (the transfer from the signal's branch row)."""
+def _noise_figure_of(metric: Metric, network: SmallSignal, noise: _Noise, grid: Array,
+                     input_part: str, output_net: str) -> Array:
+    if metric.form == "output_noise_density":
+        return noise.output[:, 0]
+    if metric.form == "input_noise_density":
+        return noise.input[:, 0]
+    if metric.form == "snr":
+        signal = network.solution.problem.values[input_part]
+        gain_db = _gain_db(network, signal["frequency"][:, None], input_part, output_net)[:, 0]
+        output_rms = np.asarray(spectra.rms(grid, noise.output ** 2), dtype=float)
+        return _scalar(spectra.snr_db)(signal["value"] / math.sqrt(2.0)
+                                       * 10.0 ** (gain_db / 20.0), output_rms)
+    if metric.form == "noise_figure":
+        return _scalar(spectra.noise_figure_db)(
+            spectra.integrate_band(grid, noise.output ** 2),
+            spectra.integrate_band(grid, noise.source), network.solution.problem.temperature_k)
+    return np.asarray(spectra.rms(grid, noise.input ** 2), dtype=float)
+
+
+def _scalar(formula: Any) -> Any:
+    """A scalar formula of :mod:`docgen.solve.spectra` applied sample by sample (``None``→NaN):
+    one definition of SNR and noise figure for the noise section and the boards."""
+    def apply(*arrays: Array) -> Array:
+        return np.array([np.nan if (v := formula(*map(float, args))) is None else v
+                         for args in zip(*np.broadcast_arrays(*arrays), strict=True)])
+    return apply
+
+
+@dataclass
+class _Noise:
+    """Noise densities of S boards on one grid, each ``(S, F)``: output and input-referred
+    (V/√Hz), and the output PSD due to the signal's source resistance alone (V²/Hz)."""
+
+    output: Array
+    input: Array
+    source: Array
+
+
+def _densities(network: SmallSignal, freq: Array, input_part: str, output_net: str) -> _Noise:
+    """The boards' noise densities.  One adjoint solve per frequency gives every source's
+    transfer and the gain (the transfer from the signal's branch row)."""
     sources = noise_sources(network, freq)
     patterns = np.stack([source.pattern for source in sources])  # (P, S, K)
     psd = np.stack([source.psd for source in sources])  # (P, S, F)
+    is_source = np.array([source.part == input_part for source in sources])
     probe = network.unit(network.row(output_net))
     branch = network.branch_row(input_part)
-    total = np.full((network.samples, len(freq)), np.nan)
-    gain = np.full((network.samples, len(freq)), np.nan)
+    total, own, gain = (np.full((network.samples, len(freq)), np.nan) for _ in range(3))
     for rows in _chunks(network.samples, len(freq), network.size):
         try:
             sensitivity = phasor.adjoint(network.G[rows], network.C[rows], freq, probe[rows])
         except np.linalg.LinAlgError:
             continue
-        transfers = np.einsum("sfk,psk->psf", sensitivity, patterns[:, rows])
-        total[rows] = np.sum(np.abs(transfers) ** 2 * psd[:, rows], axis=0)
+        powers = np.abs(np.einsum("sfk,psk->psf", sensitivity, patterns[:, rows])) ** 2 \
+            * psd[:, rows]
+        total[rows] = powers.sum(axis=0)
+        own[rows] = powers[is_source].sum(axis=0)
         gain[rows] = np.abs(sensitivity[..., branch])
     with np.errstate(divide="ignore", invalid="ignore"):
-        return np.sqrt(total), np.sqrt(total) / gain
+        return _Noise(np.sqrt(total), np.sqrt(total) / gain, own)
 
 
 def finite_or_none(values: Array) -> list[float | None]:
