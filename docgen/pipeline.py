@@ -70,7 +70,8 @@ def run(
 
     A :class:`DocgenError` from elaboration propagates (the design cannot be solved at all);
     one from an analysis is recorded under ``errors`` and later analyses still run where they
-    can, so a page shows what could be computed.
+    can, so a page shows what could be computed.  Any other exception from an analysis (a
+    docgen bug) is recorded there too, as an error naming the analysis.
     """
     from docgen.elaborate import elaborate
 
@@ -90,10 +91,20 @@ def run(
         except DocgenError as exc:
             errors.extend({"analysis": name, **d.to_json()} for d in exc.diagnostics)
             continue
+        except Exception as exc:  # noqa: BLE001 - a bug in one analysis must not hide the rest
+            errors.append(_crash(design, name, exc))
+            continue
         if section is not None:
             results[name] = section
     results["errors"] = results.pop("errors")  # kept as the last key
     return results
+
+
+def _crash(design: Design, name: str, exc: Exception) -> dict[str, Any]:
+    """An error entry for an analysis that failed with an unexpected exception (a docgen bug)."""
+    return {"analysis": name, "path": design.path, "line": 1, "col": 1, "severity": "error",
+            "message": f"docgen failed in the '{name}' analysis: {type(exc).__name__}: {exc}",
+            "hint": "this is a docgen bug; please report it with the design file"}
 
 
 def design_summary(design: Design) -> dict[str, Any]:
