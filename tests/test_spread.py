@@ -265,3 +265,17 @@ def test_spread_sections_validate_against_the_results_schema(stage: dict) -> Non
     broken["spread"]["distribution"] = "triangular"
     with pytest.raises(jsonschema.ValidationError):
         validator.validate(broken)
+
+
+def test_requirement_across_boards_reads_the_boards() -> None:
+    """The verdict of an ``across boards`` requirement is judged on the spread's boards."""
+    half = 10.0 * RATIO * (1 - RATIO) * TOLERANCE
+    limit = (f"voltage at mid : {10 * RATIO - half:.7f} V .. {10 * RATIO + half:.7f} V "
+             "across boards")
+    results = solved(DIVIDER, "output mid\nboards 400", require=limit)
+    verdict = results["checks"][0]
+    assert verdict["verdict"] == "fail" and verdict["samples"] == 400
+    assert verdict["yield"] == pytest.approx(results["spread"]["yield"])
+    worst = min(results["spread"]["samples"]["voltage at mid"],
+                key=lambda v: min(v - (10 * RATIO - half), 10 * RATIO + half - v))
+    assert verdict["worst"] == pytest.approx(worst)
