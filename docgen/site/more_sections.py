@@ -12,7 +12,6 @@ from docgen.site.sections import (
     BUILDERS,
     Results,
     Section,
-    add_fact,
     add_facts,
     curve_of,
     figure,
@@ -34,7 +33,10 @@ def large_signal(design: Design, results: Results) -> Section | None:
         ("largest output swing within the distortion limit (peak to peak)", "max_swing_vpp", "V"),
         ("input amplitude at that swing", "swing_limit_amplitude_v", "V"),
         ("headroom, positive", "headroom_pos_v", "V"),
-        ("headroom, negative", "headroom_neg_v", "V")))
+        ("headroom, negative", "headroom_neg_v", "V"),
+        ("output peak to peak at the bench amplitude", "output_vpp", "V"),
+        ("fundamental gain at the bench amplitude", "fundamental_gain_db", "dB"),
+        ("THD+N", "thd_n_percent", "%")))
     steady = section.get("steady_state")
     if isinstance(steady, dict) and "reached" in steady:
         words = "reached" if steady.get("reached") else "NOT reached (figures are approximate)"
@@ -82,7 +84,8 @@ def feedback(design: Design, results: Results) -> Section | None:
                              ("PSRR at the signal frequency", "psrr_at_signal_db", "dB"),
                              ("step overshoot", "overshoot_percent", "%"),
                              ("step settling time", "settling_time_s", "s"),
-                             ("output offset", "output_offset_v", "V")))
+                             ("output offset", "output_offset_v", "V"),
+                             ("full-power bandwidth", "full_power_bandwidth_hz", "Hz")))
     step = section.get("step")
     if isinstance(step, dict):
         add_facts(out, step, (("step overshoot", "overshoot_percent", "%"),
@@ -117,11 +120,17 @@ def _step_figure(out: Section, step: Any) -> None:
 
 
 def _offset(out: Section, offset: Any) -> None:
+    """The offset budget's worst case and its largest contributors (``feedback.offset``)."""
     if not isinstance(offset, dict):
         return
-    for key, value in sorted(offset.items()):
-        if key.endswith("_v") and isinstance(value, (int, float)):
-            add_fact(out, "output offset, " + key[:-2].replace("_", " "), value, "V")
+    add_facts(out, offset, (("output offset, linear worst case", "worst_case_v", "V"),))
+    rows = [[str(c.get("part", "")), str(c.get("source", "")).replace("_", " "),
+             format_eng(c.get("output_v"), "V"), format_eng(c.get("worst_output_v"), "V")]
+            for c in offset.get("contributions") or [] if isinstance(c, dict)]
+    if rows:
+        out["tables"].append(table("Output offset budget", ["part", "source", "at its value",
+                                                            "worst"], rows,
+                                   [False, False, True, True]))
 
 
 def _rejection(design: Design, out: Section, section: dict[str, Any]) -> None:
