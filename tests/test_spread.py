@@ -76,7 +76,8 @@ def solved(circuit: str, bench: str, models: str = "", require: str = "") -> dic
 @pytest.fixture(scope="module")
 def stage() -> dict:
     return solved(STAGE, STAGE_BENCH, require="signal-to-noise ratio : > 10 dB\n"
-                                               "noise figure : < 20 dB")
+                                               "noise figure : < 20 dB\n"
+                                               "unity-gain frequency : > 1 MHz")
 
 
 def test_batch_equals_a_loop_of_single_solutions() -> None:
@@ -101,7 +102,8 @@ def test_batch_equals_a_loop_of_single_solutions() -> None:
 
 @pytest.mark.parametrize(("text", "rtol"), [
     ("gain at 1 kHz", 1e-5), ("midband gain", 1e-5), ("low corner", 1e-5),
-    ("high corner", 1e-5), ("input impedance", 1e-5), ("output impedance", 1e-5),
+    ("high corner", 1e-5), ("unity-gain frequency", 1e-5), ("input impedance", 1e-5),
+    ("output impedance", 1e-5),
     ("Q1 collector current", 1e-5), ("supply current", 1e-5),
     # the boards integrate noise on a coarser grid than the noise section (documented)
     ("input noise", 1e-3), ("signal-to-noise ratio", 1e-4), ("noise figure", 1e-3),

@@ -53,7 +53,7 @@ NOISE_POINTS_PER_DECADE = 10
 
 OP_FORMS = {"net_voltage", "supply_current", "supply_power"}
 AC_POINT_FORMS = {"gain_at", "phase_at", "zin", "zout", "zin_at", "zout_at"}
-SWEEP_FORMS = {"midband_gain", "low_corner", "high_corner"}
+SWEEP_FORMS = {"midband_gain", "low_corner", "high_corner", "unity_gain"}
 NOISE_FORMS = {"input_noise", "input_noise_band", "input_noise_density",
                "output_noise_density", "snr", "noise_figure"}
 
@@ -262,8 +262,8 @@ def _sweep_metrics(network: SmallSignal, metrics: Sequence[Metric], input_part: 
         """The gain (dB) of each board at its own frequency ``10**log_f`` (``(S,)``)."""
         return _gain_db(network, 10.0 ** log_f[:, None], input_part, output_net)[:, 0]
 
-    peak, low, high = midband_and_corners(freq, gain, evaluate_db)
-    found = {"midband_gain": peak, "low_corner": low, "high_corner": high}
+    found = midband_and_corners(freq, gain, evaluate_db,
+                                unity=any(m.form == "unity_gain" for m in metrics))
     return {m.key: found[m.form] for m in metrics if m.form in SWEEP_FORMS}
 
 

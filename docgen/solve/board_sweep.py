@@ -2,7 +2,7 @@
 
 Public API::
 
-    peak_db, f_low, f_high = midband_and_corners(freq, gain_db, evaluate_db)
+    found = midband_and_corners(freq, gain_db, evaluate_db, unity=True)  # {form: (S,)}
 
 ``gain_db`` is ``(S, F)`` on the shared coarse grid ``freq``; ``evaluate_db(log_f)`` returns
 each board's gain (dB) at its own frequency ``10**log_f[s]`` (one batched solve per call).
@@ -32,15 +32,26 @@ PEAK_ROUNDS = 16
 CORNER_ROUNDS = 8
 
 
-def midband_and_corners(freq: Array, gain_db: Array, evaluate_db: Any
-                        ) -> tuple[Array, Array, Array]:
-    """(midband gain dB, low corner Hz, high corner Hz), each ``(S,)`` (see the docstring)."""
+def midband_and_corners(freq: Array, gain_db: Array, evaluate_db: Any, unity: bool = False
+                        ) -> dict[str, Array]:
+    """``midband_gain`` (dB), ``low_corner``, ``high_corner`` and, with ``unity``,
+    ``unity_gain`` (Hz: the first 0 dB crossing above midband, NaN where midband is not above
+    0 dB), each ``(S,)`` (see the module docstring)."""
     peak_index = np.argmax(np.where(np.isnan(gain_db), -np.inf, gain_db), axis=1)
     peak_f, peak_g = _refine_peaks(freq, gain_db, peak_index, evaluate_db)
     level = peak_g - curves.CORNER_DROP_DB
-    return (peak_g,
-            _corners(freq, gain_db, peak_index, peak_f, peak_g, level, -1, evaluate_db),
-            _corners(freq, gain_db, peak_index, peak_f, peak_g, level, 1, evaluate_db))
+    found = {
+        "midband_gain": peak_g,
+        "low_corner": _corners(freq, gain_db, peak_index, peak_f, peak_g, level, -1,
+                               evaluate_db),
+        "high_corner": _corners(freq, gain_db, peak_index, peak_f, peak_g, level, 1,
+                                evaluate_db),
+    }
+    if unity:
+        crossing = _corners(freq, gain_db, peak_index, peak_f, peak_g, np.zeros_like(peak_g), 1,
+                            evaluate_db)
+        found["unity_gain"] = np.where(peak_g > curves.UNITY_MARGIN_DB, crossing, np.nan)
+    return found
 
 
 def _refine_peaks(freq: Array, gain: Array, index: Array, evaluate_db: Any
