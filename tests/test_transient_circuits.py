@@ -92,8 +92,8 @@ def test_diode_rc_driven_by_a_sine_matches_solve_ivp():
     def source(t):
         return 3.0 * math.sin(omega * t)
 
-    circuit, t, grid = _march(DIODE_RC, lambda t: np.array([source(t)]), 1e-3 / 256, 768,
-                              models, tolerance=1e-5)
+    circuit, t, grid = _march(DIODE_RC, lambda t: np.array([source(t)]), 1e-3 / 128, 256,
+                              models, tolerance=1e-4)
 
     def rhs(time, v):
         return [(_shockley(source(time) - v[0]) - v[0] / 10e3) / 100e-9]
