@@ -26,10 +26,11 @@ from __future__ import annotations
 from typing import NamedTuple
 
 import numpy as np
-from scipy import constants
+
+from docgen.solve.physical import BOLTZMANN, ELEMENTARY_CHARGE, ZERO_CELSIUS
 
 #: Reference temperature of model parameters (25 °C), in kelvin.
-T_REFERENCE = constants.zero_Celsius + 25.0
+T_REFERENCE = ZERO_CELSIUS + 25.0
 
 #: Conductance across every junction and channel, so a device in cut-off never leaves a node
 #: without a path (common practice in nodal solvers; 1 pS changes no result a bench can see).
@@ -49,8 +50,8 @@ Array = np.ndarray
 
 
 def thermal_voltage(temperature_k: Array | float) -> Array:
-    """VT = kT/q in volts (Boltzmann constant and elementary charge from scipy.constants)."""
-    return np.asarray(temperature_k, dtype=float) * constants.k / constants.e
+    """VT = kT/q in volts (Boltzmann constant and elementary charge, exact in the SI)."""
+    return np.asarray(temperature_k, dtype=float) * BOLTZMANN / ELEMENTARY_CHARGE
 
 
 def saturation_current_at(

@@ -32,7 +32,6 @@ from dataclasses import dataclass
 from typing import Any
 
 import numpy as np
-from scipy import constants
 
 from docgen.elaborate import Circuit, Device
 from docgen.kinds import GROUND
@@ -51,6 +50,7 @@ from docgen.solve.companions import (  # noqa: F401 - re-exported for the analys
     limit_opamp,
     opamp_residual,
 )
+from docgen.solve.physical import ZERO_CELSIUS
 
 Array = np.ndarray
 #: ``(part, value name)`` → value(s); arrays are shaped ``(S,)``.
@@ -92,7 +92,7 @@ class Problem:
     @property
     def temperature_k(self) -> Array:
         """The temperature of every sample in kelvin."""
-        return self.temperature_c + constants.zero_Celsius
+        return self.temperature_c + ZERO_CELSIUS
 
     def subset(self, index: Array) -> Problem:
         """The same problem restricted to the samples in ``index``."""

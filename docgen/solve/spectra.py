@@ -19,17 +19,16 @@ import math
 from collections.abc import Mapping
 
 import numpy as np
-from scipy import constants
 
-BOLTZMANN = constants.k
-ELEMENTARY_CHARGE = constants.e
+from docgen.solve.physical import BOLTZMANN, ELEMENTARY_CHARGE, ZERO_CELSIUS
+
 #: the reference temperature of the IEEE noise figure definition, 290 K.
 REFERENCE_TEMPERATURE_K = 290.0
 
 
 def kelvin(celsius: float) -> float:
     """°C → K."""
-    return celsius + constants.zero_Celsius
+    return celsius + ZERO_CELSIUS
 
 
 def thermal_current_psd(resistance: float | np.ndarray, temperature_k: float) -> np.ndarray:
