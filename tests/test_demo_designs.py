@@ -12,7 +12,8 @@ from pathlib import Path
 
 import pytest
 
-from docgen import eseries
+from docgen import eseries, pipeline
+from docgen.check.gate import sections_for
 from tests.demo_helpers import DESIGNS, design, record, solve, verdicts, with_value
 
 DESIGN_FILES = sorted(p.name for p in DESIGNS.glob("*.md")
@@ -38,6 +39,16 @@ KEY_MOVES = {
     "cell-driver-v1.md": ("RE", ("up",)),
     "hydrophone-preamp-lowpower.md": ("RC", ("down", "up")),
 }
+
+#: Designs whose requirements need the large-signal (transient) analysis take several seconds
+#: each to solve; their cases are marked slow.
+SLOW = {name for name in DESIGN_FILES if "transient" in sections_for(design(name))}
+
+
+def cases(names: list[str]) -> list:
+    """``names`` as pytest parameters, the slow ones marked."""
+    return [pytest.param(n, marks=pytest.mark.slow) if n in SLOW else n for n in names]
+
 
 _SOLVED: dict[str, dict] = {}
 
@@ -82,7 +93,7 @@ def test_every_design_uses_only_the_team_library() -> None:
         assert models and all(m.startswith("stock-") for m in models), page.path
 
 
-@pytest.mark.parametrize("name", DESIGN_FILES)
+@pytest.mark.parametrize("name", cases(DESIGN_FILES))
 def test_design_solves_with_its_transistors_in_normal_operation(name: str) -> None:
     results = solved(name)
     assert results["errors"] == []
@@ -94,7 +105,7 @@ def test_design_solves_with_its_transistors_in_normal_operation(name: str) -> No
             assert parts[part.name]["region"] == "saturation", part.name
 
 
-@pytest.mark.parametrize("name", DESIGN_FILES)
+@pytest.mark.parametrize("name", cases(DESIGN_FILES))
 def test_requirement_verdicts_agree_with_the_notes(name: str) -> None:
     found = verdicts(solved(name))
     assert "invalid" not in found.values()
@@ -119,7 +130,9 @@ def test_only_the_retired_class_a_driver_trips_a_rating_caution() -> None:
     """The v1 cell driver's 180 Ω emitter resistor runs above half its 0.25 W rating (common
     practice derating: at most half): (5.4 V)²/180 Ω ≈ 0.16 W by hand."""
     for name in DESIGN_FILES:
-        cautions = [c for c in solved(name).get("cautions", [])
+        page = design(name)
+        results = pipeline.run(page, record().models_for(page), only=frozenset({"op", "cautions"}))
+        cautions = [c for c in results.get("cautions", [])
                     if c.get("severity") in ("warning", "error")]
         if name == "cell-driver-v1.md":
             assert [(c["part"], c["figure"]) for c in cautions] == [("RE", "power")]
@@ -128,8 +141,9 @@ def test_only_the_retired_class_a_driver_trips_a_rating_caution() -> None:
             assert cautions == [], name
 
 
-def _moves() -> list[tuple[str, str, str]]:
-    return [(name, part, way) for name, (part, ways) in KEY_MOVES.items() for way in ways]
+def _moves() -> list:
+    return [pytest.param(name, part, way, marks=[pytest.mark.slow] if name in SLOW else [])
+            for name, (part, ways) in KEY_MOVES.items() for way in ways]
 
 
 @pytest.mark.parametrize(("name", "part", "way"), _moves())
@@ -150,7 +164,7 @@ def test_one_e12_step_of_the_key_part_breaks_a_requirement(name: str, part: str,
     assert broken, f"{part} → {moved:g} broke nothing: {after}"
 
 
-@pytest.mark.parametrize("name", DESIGN_FILES)
+@pytest.mark.parametrize("name", cases(DESIGN_FILES))
 def test_hand_estimates_in_the_notes_agree_with_the_solver(name: str) -> None:
     """Each design's ``estimate`` lines are the textbook hand formulas of its notes (Sedra &
     Smith, *Microelectronic Circuits*: divider bias, degenerated gain, follower output
@@ -164,7 +178,7 @@ def test_hand_estimates_in_the_notes_agree_with_the_solver(name: str) -> None:
             assert abs(row["error_percent"]) < 10, row
 
 
-@pytest.mark.parametrize("name", DESIGN_FILES)
+@pytest.mark.parametrize("name", cases(DESIGN_FILES))
 def test_design_draws_a_schematic_that_reads_back_as_its_netlist(name: str) -> None:
     from docgen.draw import draw
 
