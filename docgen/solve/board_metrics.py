@@ -178,7 +178,10 @@ def _small_signal(network: SmallSignal, metrics: Sequence[Metric], ports: tuple[
     points = sorted({m.args.get("freq", signal_hz) for m in metrics if m.form in AC_POINT_FORMS})
     out: dict[str, Array] = {}
     if points:
-        ports_at = _port_curves(network, np.array(points), input_part, output_net)
+        impedances = any(m.form.startswith(("zin", "zout")) for m in metrics)
+        ports_at = (_port_curves(network, np.array(points), input_part, output_net)
+                    if impedances else  # the gain alone: one solve instead of two
+                    {"gain": _transfer(network, np.array(points), input_part, output_net)})
         for metric in metrics:
             if metric.form in AC_POINT_FORMS:
                 column = points.index(metric.args.get("freq", signal_hz))
@@ -238,18 +241,23 @@ def _point_value(metric: Metric, ports_at: Mapping[str, Array], column: int,
         return np.where(np.isfinite(curve), np.abs(curve), np.nan)
 
 
-def _gain_db(network: SmallSignal, freq: Array, input_part: str, output_net: str) -> Array:
-    """|gain| in dB, ``freq`` ``(F,)`` or ``(S, F)``, chunk by chunk; NaN where singular."""
+def _transfer(network: SmallSignal, freq: Array, input_part: str, output_net: str) -> Array:
+    """The complex gain, ``freq`` ``(F,)`` or ``(S, F)``, chunk by chunk; NaN where singular."""
     freq = np.asarray(freq, dtype=float)
-    out = np.full((network.samples, freq.shape[-1]), np.nan)
+    out = np.full((network.samples, freq.shape[-1]), np.nan + 0j)
     for rows in _chunks(network.samples, freq.shape[-1], network.size):
         part = replace(network, G=network.G[rows], C=network.C[rows])  # transfer reads G, C
         try:
-            out[rows] = _db(transfer(part, freq[rows] if freq.ndim == 2 else freq, input_part,
-                                     output_net))
+            out[rows] = transfer(part, freq[rows] if freq.ndim == 2 else freq, input_part,
+                                 output_net)
         except np.linalg.LinAlgError:
             continue
     return out
+
+
+def _gain_db(network: SmallSignal, freq: Array, input_part: str, output_net: str) -> Array:
+    """|gain| in dB (see :func:`_transfer`)."""
+    return _db(_transfer(network, freq, input_part, output_net))
 
 
 def _sweep_metrics(network: SmallSignal, metrics: Sequence[Metric], input_part: str,
