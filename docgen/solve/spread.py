@@ -20,10 +20,9 @@ What it does, in one batch (:func:`docgen.solve.board_metrics.evaluate`):
   magnitude (so dM/M = ln10/20 · d(dB)).
 - **Temperature**: the nominal design at ambient points across ``bench.ambient_range`` with the
   temperature-dependent device equations and the parts' tempco (also samples of that batch).
-- **Worst case**: for each metric, every low/high combination of the :data:`WORST_CASE_PARTS`
-  varied values that can move it most (|sensitivity| × the value's largest relative excursion;
-  the rest nominal, bench ambient), a second batch; the extremes are reported apart from the
-  Monte Carlo ones, with the corner that gives each.
+- **Worst case** (:mod:`docgen.solve.worst_case`): for each metric, every low/high combination
+  of the few varied values that can move it most (the rest nominal, bench ambient), a second
+  batch; the extremes are reported apart from the Monte Carlo ones, with the corner of each.
 
 The pipeline stores the returned dict under ``spread``; the temperature results sit at
 ``spread.temperature`` and the sensitivities at ``spread.sensitivity`` (one analysis writes one
@@ -48,15 +47,12 @@ from docgen.elaborate import Circuit, Variation, variations
 from docgen.metrics import Metric
 from docgen.solve import board_metrics, sampling
 from docgen.solve.operating_point import require_converged, solve_op
+from docgen.solve.worst_case import SENSITIVITY_FLOOR, label, worst_case
 
 Array = np.ndarray
 
 #: Relative step of the central differences for the sensitivities.
 STEP = 1e-3
-#: Sensitivities smaller than this are left out (they are finite-difference noise or nothing).
-SENSITIVITY_FLOOR = 1e-5
-#: How many of a metric's most important varied values the worst-case corners combine.
-WORST_CASE_PARTS = 4
 PERCENTILES = (1, 5, 50, 95, 99)
 HISTOGRAM_BINS = 20
 #: Ambient points are at most this far apart (°C), and at least :data:`MIN_AMBIENT_POINTS`.
@@ -236,6 +232,12 @@ def _sensitivities(metrics: Sequence[Metric], params: Sequence[Parameter],
     return out
 
 
+def _by_value(params: Sequence[Parameter], sensitivities: dict[str, Array]
+              ) -> dict[str, dict[tuple[str, str], float]]:
+    return {key: {(p.part, p.name): float(row[i]) for i, p in enumerate(params)}
+            for key, row in sensitivities.items()}
+
+
 def _ranking(params: Sequence[Parameter], sensitivities: dict[str, Array]) -> list[dict]:
     ranking = []
     for key, row in sensitivities.items():
@@ -245,102 +247,6 @@ def _ranking(params: Sequence[Parameter], sensitivities: dict[str, Array]) -> li
                      "name": params[i].name, "sensitivity": float(row[i])}
                     for i in order if math.isfinite(row[i]) and abs(row[i]) >= SENSITIVITY_FLOOR]
     return ranking
-
-
-# ----------------------------------------------------------------------------- worst case
-
-
-def _worst_case(ctx: Any, metrics: Sequence[Metric], varied: Sequence[Variation],
-                params: Sequence[Parameter], sensitivities: dict[str, Array], ports: Any,
-                start: Any, references: dict[str, float]) -> dict[str, Any]:
-    """Every low/high corner of each metric's most important varied values, one batch."""
-    index = {(p.part, p.name): i for i, p in enumerate(params)}
-    plans = []
-    for metric in metrics:
-        row = sensitivities.get(metric.key)
-        if row is None:
-            continue
-        effect = {v: _effect(v, row[index[(v.part, v.name)]]) for v in varied
-                  if (v.part, v.name) in index}
-        ranked = sorted(effect, key=lambda v: (-effect[v], _label(v)))
-        chosen = [v for v in ranked[:WORST_CASE_PARTS] if effect[v] > 0]
-        if chosen:
-            plans.append((metric, chosen))
-    if not plans:
-        return {}
-    total = sum(2 ** len(chosen) for _, chosen in plans)
-    overrides = {(v.part, v.name): np.full(total, v.nominal) for v in varied}
-    spans, at = [], 0
-    for _metric, chosen in plans:
-        corners = (np.arange(2 ** len(chosen))[:, None] >> np.arange(len(chosen))) & 1
-        for j, v in enumerate(chosen):
-            overrides[(v.part, v.name)][at:at + len(corners)] = np.where(corners[:, j], v.high,
-                                                                         v.low)
-        spans.append(slice(at, at + len(corners)))
-        at += len(corners)
-    batch = _by_cost(ctx.circuit, plans, spans, overrides, ports, start, references)
-    out = {}
-    for (metric, chosen), rows in zip(plans, spans, strict=True):
-        values = batch.values[metric.key][rows]
-        if not np.isfinite(values).any():
-            out[metric.key] = {"parameters": [_label(v) for v in chosen], "low": None,
-                               "high": None, "unsolved": int(np.sum(~batch.converged[rows]))}
-            continue
-        low, high = int(np.nanargmin(values)), int(np.nanargmax(values))
-        corner = {k: overrides[k][rows] for k in ((v.part, v.name) for v in chosen)}
-        out[metric.key] = {
-            "parameters": [_label(v) for v in chosen],
-            "low": float(values[low]), "high": float(values[high]),
-            "low_corner": {_label(v): float(corner[(v.part, v.name)][low]) for v in chosen},
-            "high_corner": {_label(v): float(corner[(v.part, v.name)][high]) for v in chosen},
-            "unsolved": int(np.sum(~batch.converged[rows])),
-        }
-    return out
-
-
-@dataclass
-class _Corners:
-    """The worst-case batch's values (``NaN`` outside each metric's own rows)."""
-
-    values: dict[str, Array]
-    converged: Array
-
-
-def _by_cost(circuit: Circuit, plans: list, spans: list[slice], overrides: dict, ports: Any,
-             start: Any, references: dict[str, float]) -> _Corners:
-    """Each metric on its own corner rows only: one batch per kind of metric (operating point
-    and single frequencies together; the sweep's and the noise's costly ones apart)."""
-    total = spans[-1].stop
-    values = {metric.key: np.full(total, np.nan) for metric, _ in plans}
-    converged = np.ones(total, dtype=bool)
-    groups: dict[str, list[int]] = {}
-    for i, (metric, _) in enumerate(plans):
-        kind = ("sweep" if metric.form in board_metrics.SWEEP_FORMS else
-                "noise" if metric.form in board_metrics.NOISE_FORMS else "point")
-        groups.setdefault(kind, []).append(i)
-    for members in groups.values():
-        rows = np.concatenate([np.arange(spans[i].start, spans[i].stop) for i in members])
-        batch = board_metrics.evaluate(circuit, [plans[i][0] for i in members],
-                                       {k: v[rows] for k, v in overrides.items()}, ports=ports,
-                                       start=start, phase_reference=references)
-        converged[rows] = batch.converged
-        for i in members:
-            key = plans[i][0].key
-            values[key][rows] = batch.values[key]
-    return _Corners(values, converged)
-
-
-def _effect(v: Variation, sensitivity: float) -> float:
-    """How far a value can move a metric, to first order: |S| × its largest relative excursion
-    (a ±1 % resistor with S = 1 matters less than a β of 150..350 with S = 0.05)."""
-    if not math.isfinite(sensitivity) or abs(sensitivity) < SENSITIVITY_FLOOR:
-        return 0.0
-    excursion = max(abs(v.high - v.nominal), abs(v.nominal - v.low)) / abs(v.nominal)
-    return abs(sensitivity) * excursion
-
-
-def _label(v: Variation) -> str:
-    return v.part if v.name == "value" else f"{v.part}.{v.name}"
 
 
 # ----------------------------------------------------------------------------- the section
@@ -391,7 +297,7 @@ def analyse(ctx: Any) -> dict[str, Any]:
         "boards": int(bench.boards), "seed": int(bench.seed), "distribution": bench.distribution,
         "unsolved": int(np.sum(~boards_ok)),
         "unsolved_boards": np.flatnonzero(~boards_ok)[:LISTED_UNSOLVED].tolist(),
-        "varied": [{"parameter": _label(v), "part": v.part, "name": v.name,
+        "varied": [{"parameter": label(v), "part": v.part, "name": v.name,
                     "nominal": v.nominal, "low": v.low, "high": v.high, "origin": v.origin}
                    for v in varied],
         "metrics": {m.key: {"unit": m.unit, "nominal": float(values[m.key][0]),
@@ -400,8 +306,8 @@ def analyse(ctx: Any) -> dict[str, Any]:
         "not_sampled": skipped,
         "yield": overall,
         "yield_by_requirement": each,
-        "worst_case": _worst_case(ctx, metrics, varied, params, sensitivities, ports, nominal,
-                                  references),
+        "worst_case": worst_case(circuit, metrics, varied, _by_value(params, sensitivities),
+                                 ports, nominal, references),
         "sensitivity": {"step": STEP, "ranking": _ranking(params, sensitivities)},
     }
     if ambient is not None:
