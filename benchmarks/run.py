@@ -64,7 +64,8 @@ def demo_designs(quick: bool) -> list[str]:
 def bench_analyses(table: Table, args: argparse.Namespace) -> None:
     """Operating point, response, noise, 400-point sweep, steady state per demo design."""
     for path in demo_designs(args.quick):
-        runs = [child("stages", path, str(args.repeats), str(int(args.sections)), cwd=REPO)
+        runs = [child("stages", path, str(args.repeats), str(int(args.sections)), args.clock,
+                      cwd=REPO)
                 for _ in range(args.cold_repeats)]
         names = list(runs[0]["cold"])
         for name in names:
@@ -209,7 +210,7 @@ def run_child(argv: list[str]) -> None:
     if kind == "stages":
         import stages
 
-        out: Any = stages.measure(rest[0], int(rest[1]), bool(int(rest[2])))
+        out: Any = stages.measure(rest[0], int(rest[1]), bool(int(rest[2])), rest[3])
     elif kind == "spread":
         out = _spread_child(rest[0], int(rest[1]), int(rest[2]))
     elif kind == "draw":
@@ -249,6 +250,9 @@ def parse(argv: list[str] | None) -> argparse.Namespace:
     parser.add_argument("--sections", action="store_true",
                         help="also time every further pipeline section per design (transient "
                         "with its swing search, feedback, spread, checks)")
+    parser.add_argument("--clock", choices=("wall", "cpu"), default="wall",
+                        help="what the analyses rows measure: wall time (default) or the "
+                        "process's CPU time, steadier when the machine is shared")
     args = parser.parse_args(argv)
     args.repeats = args.repeats or (3 if args.quick else 5)
     args.cold_repeats = 2 if args.quick else 3
@@ -264,6 +268,7 @@ def main(argv: list[str] | None = None) -> int:
         return 0
     args = parse(argv)
     print(measure.machine(), flush=True)
+    print(f"analyses rows: {args.clock} seconds; builds and check: wall, with CPU in the note")
     table = Table()
     benches = {"analyses": bench_analyses, "spread": bench_spread, "draw": bench_draw,
                "site": bench_site, "generated": bench_generated, "check": bench_check}

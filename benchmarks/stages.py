@@ -38,7 +38,7 @@ def _sweep400(ctx: Any) -> tuple[Any, int]:
         network.size
 
 
-def _raw_sweep(size: int, points: int = 400, repeats: int = 5) -> float:
+def _raw_sweep(size: int, clock: Any, points: int = 400, repeats: int = 5) -> float:
     """Median seconds of numpy's solve of two ``(points, K, K)`` complex systems."""
     rng = np.random.default_rng(0)
     shape = (points, size, size)
@@ -46,14 +46,15 @@ def _raw_sweep(size: int, points: int = 400, repeats: int = 5) -> float:
     rhs = np.ones((points, size, 1), dtype=complex)
     times = []
     for _ in range(repeats):
-        start = time.perf_counter()
+        start = clock()
         np.linalg.solve(matrix, rhs)
         np.linalg.solve(matrix, rhs)
-        times.append(time.perf_counter() - start)
+        times.append(clock() - start)
     return float(np.median(times))
 
 
-def _one_pass(design: Any, library: Any, sections: bool) -> tuple[dict[str, float], int]:
+def _one_pass(design: Any, library: Any, sections: bool, clock: Any
+              ) -> tuple[dict[str, float], int]:
     from docgen import pipeline
     from docgen.elaborate import elaborate
 
@@ -64,14 +65,14 @@ def _one_pass(design: Any, library: Any, sections: bool) -> tuple[dict[str, floa
     size = 0
 
     def stage(name: str, run: Any) -> Any:
-        start = time.perf_counter()
+        start = clock()
         try:
             value = run()
         except Exception as exc:  # noqa: BLE001 - a failing stage is reported, not fatal
             times[name] = float("nan")
             results["errors"].append({"analysis": name, "message": str(exc)})
             return None
-        times[name] = time.perf_counter() - start
+        times[name] = clock() - start
         return value
 
     for name, target in pipeline.ANALYSES:
@@ -89,14 +90,16 @@ def _one_pass(design: Any, library: Any, sections: bool) -> tuple[dict[str, floa
     return times, size
 
 
-def measure(path: str, repeats: int, sections: bool) -> dict[str, Any]:
-    """Cold (pass 0) and warm (passes 1..) seconds per stage for the design at ``path``."""
+def measure(path: str, repeats: int, sections: bool, clock: str = "wall") -> dict[str, Any]:
+    """Cold (pass 0) and warm (passes 1..) seconds per stage for the design at ``path``;
+    ``clock`` is ``wall`` or ``cpu`` (this process's CPU time: steadier on a shared machine)."""
     from docgen.record import load_record
 
     record = load_record(path, ["designs"])
     design = record.designs[0]
     library = record.models_for(design)
-    passes = [_one_pass(design, library, sections) for _ in range(max(2, repeats))]
+    timer = time.process_time if clock == "cpu" else time.perf_counter
+    passes = [_one_pass(design, library, sections, timer) for _ in range(max(2, repeats))]
     size = passes[0][1]
     return {"cold": passes[0][0], "warm": [p[0] for p in passes[1:]],
-            "raw sweep 400": _raw_sweep(size) if size else None, "unknowns": size}
+            "raw sweep 400": _raw_sweep(size, timer) if size else None, "unknowns": size}
