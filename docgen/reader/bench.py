@@ -25,7 +25,8 @@ EXTRA_KEYS: dict[str, str] = {
             "ratio of their controlled source); default every op-amp in negative feedback",
     "step": "`10 mV`: the height of the input step for the step response; default 10 mV at the "
             "output over the midband gain",
-    "amplitudes": "input amplitudes for the distortion sweep",
+    "amplitudes": "`50 mV, 100 mV rms`: input amplitudes for the distortion table, separated "
+                  "by commas, each peak unless followed by rms or pp; default none",
 }
 
 #: reads a value text into Bench fields.
