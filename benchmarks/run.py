@@ -157,7 +157,8 @@ def bench_site(table: Table, args: argparse.Namespace) -> None:
     with tempfile.TemporaryDirectory(prefix="docgen-bench-") as folder:
         repo = make_demo_repo(Path(folder) / "demo")
         for jobs in (1, 2):
-            build_rows(table, "demo", repo / "designs", Path(folder), jobs, args.repeats)
+            build_rows(table, "demo", repo / "designs", Path(folder), jobs,
+                       1 if args.quick else args.repeats)
 
 
 def bench_generated(table: Table, args: argparse.Namespace) -> None:
@@ -192,7 +193,8 @@ def bench_check(table: Table, args: argparse.Namespace) -> None:
 
     with tempfile.TemporaryDirectory(prefix="docgen-bench-") as folder:
         repo = make_demo_repo(Path(folder) / "demo")
-        runs = [command(["docgen", "check"], cwd=repo) for _ in range(args.repeats)]
+        runs = [command(["docgen", "check"], cwd=repo)
+                for _ in range(1 if args.quick else args.repeats)]
         start = [command([sys.executable, "-c", "import docgen.cli"], cwd=repo)
                  for _ in range(args.repeats)]
     table.row("check", "docgen check (demo record, end to end)", median([w for w, _, _ in runs]),

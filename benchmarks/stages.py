@@ -18,6 +18,7 @@ solved is reused), modules already imported.  Stages timed, in pipeline order:
 from __future__ import annotations
 
 import time
+from pathlib import Path
 from typing import Any
 
 import numpy as np
@@ -95,7 +96,7 @@ def measure(path: str, repeats: int, sections: bool, clock: str = "wall") -> dic
     ``clock`` is ``wall`` or ``cpu`` (this process's CPU time: steadier on a shared machine)."""
     from docgen.record import load_record
 
-    record = load_record(path, ["designs"])
+    record = load_record(path, [str(Path(path).parent)])  # library pages beside the design
     design = record.designs[0]
     library = record.models_for(design)
     timer = time.process_time if clock == "cpu" else time.perf_counter
