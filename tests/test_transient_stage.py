@@ -123,3 +123,18 @@ def test_terminal_report_shows_the_large_signal_figures():
     assert "Large signal at 20 mV peak, 1 kHz" in text
     assert f"{out['transient']['thd_percent']:.4g} %" in text
     assert "trapezoidal rule" in text
+
+
+@pytest.mark.parametrize("text, message", [
+    ("50 mV, banana", "'banana'"),
+    ("50 mV, -1 V", "greater than zero"),
+    ("0.1 A", "'0.1 A'"),
+])
+def test_bad_bench_amplitudes_are_reported_at_their_line(text, message):
+    page = design_text(CE.format(amplitude="10 mV"), bench=BENCH + f"\namplitudes {text}")
+    out = pipeline.run(read_text(page, "test.md"), _BUILTINS, only=SECTIONS)
+    errors = [e for e in out["errors"] if e["analysis"] == "transient"]
+    assert len(errors) == 1 and message in errors[0]["message"]
+    line = page.splitlines()[errors[0]["line"] - 1]
+    assert line.startswith("amplitudes")
+    assert "transient" not in out
