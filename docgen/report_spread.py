@@ -49,6 +49,12 @@ def _sensitivity_lines(section: dict[str, Any]) -> list[str]:
             *table(["metric", "parameters"], [[k, ", ".join(v)] for k, v in by_metric.items()])]
 
 
+def _per_degree(value: Any, unit: str) -> str:
+    """A slope in engineering notation with its unit per °C (``954.2 nA/°C``)."""
+    text = _value(value, unit)
+    return text if value is None else f"{text}/°C"
+
+
 def _temperature_lines(section: dict[str, Any]) -> list[str]:
     temperature = section.get("temperature")
     if not isinstance(temperature, dict) or not temperature.get("ambient_c"):
@@ -61,7 +67,7 @@ def _temperature_lines(section: dict[str, Any]) -> list[str]:
         drift = (temperature.get("drift") or {}).get(key) or {}
         rows.append([key, _value(values[0], unit), _value(values[-1], unit),
                      _value(drift.get("change"), unit),
-                     _value(drift.get("per_degree"), f"{unit}/°C" if unit else "/°C")])
+                     _per_degree(drift.get("per_degree"), unit)])
     out = heading(f"Temperature: {eng(ambient[0], '°C')} .. {eng(ambient[-1], '°C')} "
                   f"({len(ambient)} points, nominal parts)")
     if temperature.get("unsolved"):

@@ -206,9 +206,10 @@ RE  resistor 1k8       : e gnd
 
 
 def test_vbe_drifts_about_minus_two_millivolts_per_degree() -> None:
-    spread = solved(BIAS, "output c\nboards 10\nambient 25 °C (-20 °C .. 80 °C)")["spread"]
-    drift = spread["temperature"]["drift"]["Q1 base-emitter voltage"]["per_degree"]
+    results = solved(BIAS, "output c\nboards 10\nambient 25 °C (-20 °C .. 80 °C)")
+    drift = results["spread"]["temperature"]["drift"]["Q1 base-emitter voltage"]["per_degree"]
     assert -2.5e-3 < drift < -1.5e-3  # common practice: ≈ −2 mV/°C
+    assert f"{drift * 1e3:.4g} mV/°C".replace("-", "−") in render(results)
 
 
 def test_collector_current_at_fixed_vbe_follows_the_junction_equations() -> None:
