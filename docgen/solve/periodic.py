@@ -32,7 +32,7 @@ from docgen.solve.linearise import SmallSignal
 Array = np.ndarray
 
 POINTS = 128
-MIN_PERIODS = 3
+MIN_PERIODS = 2
 MAX_PERIODS = 40
 STEADY_CHANGE = 1e-3
 #: a net whose point-to-point alternating part exceeds this share of its peak-to-peak rings
