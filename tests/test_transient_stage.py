@@ -138,3 +138,16 @@ def test_bad_bench_amplitudes_are_reported_at_their_line(text, message):
     line = page.splitlines()[errors[0]["line"] - 1]
     assert line.startswith("amplitudes")
     assert "transient" not in out
+
+
+def test_clipping_spans_name_start_and_end_phases_and_join_across_the_period_end():
+    from docgen.solve.transient import _spans
+
+    flags = [False] * 8
+    flags[2:4] = [True, True]  # grid points 2, 3 → phases 3/8 and 4/8 of a turn
+    assert _spans(flags, {"part": "Q1"}) == [
+        {"part": "Q1", "phase_deg": 135.0, "phase_end_deg": 180.0}]
+    wrapped = [True, False, False, False, False, False, True, True]  # 7/8, 8/8 and 1/8
+    assert _spans(wrapped, {}) == [{"phase_deg": 315.0, "phase_end_deg": 45.0}]
+    assert _spans([True] * 4, {}) == [{"phase_deg": 0.0, "phase_end_deg": 360.0}]
+    assert _spans([False] * 4, {}) == []
