@@ -254,3 +254,23 @@ def test_capacitor_voltage_with_the_signal_peak(tmp_path: Path) -> None:
     found = _only([c for c in results["cautions"] if c["severity"] != "info"])
     assert (found["part"], found["figure"], found["limit"]) == ("C2", "voltage", 16.0)
     assert found["value"] == pytest.approx(18.0, abs=0.3)
+
+
+def test_diode_forward_current_and_reverse_voltage(tmp_path: Path) -> None:
+    """5 V through 10 Ω into a forward diode: I ≈ (5 − ~1 V)/10 Ω ≈ 0.4 A (Ohm's law, a
+    silicon diode drop of about a volt at that current: common practice) against 200 mA;
+    90 V across a reversed diode against its 75 V reverse rating (generic-diode)."""
+    found = _only(_cautions(tmp_path, """
+VA  supply    5 V               : vcc gnd
+R1  resistor  10 1% 5 W         : vcc a
+D1  diode     generic-diode     : a gnd
+"""))
+    assert (found["part"], found["figure"], found["limit"]) == ("D1", "forward current", 0.2)
+    assert found["value"] == pytest.approx(0.4, rel=0.1)
+    found = _only(_cautions(tmp_path, """
+VA  supply    90 V              : vcc gnd
+R1  resistor  1M 1% 0.25 W      : vcc k
+D1  diode     generic-diode     : gnd k
+"""))
+    assert (found["part"], found["figure"], found["limit"]) == ("D1", "reverse voltage", 75.0)
+    assert found["value"] == pytest.approx(90.0, rel=1e-3)
