@@ -16,7 +16,7 @@ def test_the_demo_record_builds_into_a_site_without_errors(tmp_path: Path) -> No
 
     from docgen.site.build import BuildOptions, build_site
 
-    report = build_site(BuildOptions(DESIGNS, tmp_path / "site", jobs=1, cache_dir=False,
+    report = build_site(BuildOptions(DESIGNS, tmp_path / "site", jobs=None, cache_dir=False,
                                      progress=False, providers=[]))
     errors = [d.headline() for d in report.diagnostics if d.severity == "error"]
     assert errors == []
