@@ -10,10 +10,12 @@ Public API::
 
 Each call solves the operating point of every sample together (:func:`solve_op`, converged
 samples frozen), linearises them together, and solves the small-signal network for all samples
-at the few frequencies the metrics need in one batched complex solve ``(S, F, N, N)``.  Corners
-come from a coarse per-board sweep (:data:`SWEEP_POINTS_PER_DECADE`) whose brackets are then
-narrowed on each board's own grid, batched, as :mod:`docgen.solve.curves` does for one board.
-A single design solve is simply a batch of one: there is no separate single-sample path.
+at the few frequencies the metrics need as batched complex solves ``(S, F, N, N)``, taken in
+chunks of samples (:data:`CHUNK_ENTRIES`) so memory is reused.  Midband, corners and the
+unity-gain frequency come from a coarse per-board sweep (:data:`SWEEP_POINTS_PER_DECADE`)
+narrowed on each board's own frequencies (:mod:`docgen.solve.board_sweep`); noise figures use
+the noise section's sources and formulas with one adjoint solve per frequency.  A single design
+solve is simply a batch of one: there is no separate single-sample path.
 
 Values follow the metric vocabulary (:mod:`docgen.metrics`) and the conventions of the ``op``,
 ``ac`` and ``noise`` sections, so a board with nominal values reads what those sections read.
