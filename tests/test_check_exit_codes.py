@@ -195,3 +195,17 @@ def test_an_analysis_that_fails_leaves_the_requirement_unverified(
     assert code == expected
     assert f"{path}:1:1: {severity}: ac analysis: the bench names no input" in out
     assert "not checked: the 'ac' analysis failed: the bench names no input" in out
+
+
+def test_hazardous_supply_is_a_prominent_warning(tmp_path: Path, capsys) -> None:
+    """150 V DC is beyond extra-low voltage (IEC 61140, from memory): always reported, with the
+    deferral to local codes in --json; it is a safety warning, not a failed requirement."""
+    (tmp_path / "hv.md").write_text("---\ntitle: hv\nstatus: approved\napproved: 2026-01-05\n"
+                                    "---\n```circuit\nVH supply 150 V : hv gnd\n"
+                                    "R1 resistor 1M 1% 0.25 W : hv gnd\n```\n", encoding="utf-8")
+    code, out = _check(tmp_path, capsys)
+    assert code == 0
+    assert "hv.md:7:1: warning: HAZARDOUS VOLTAGE: 150 V DC" in out
+    code, out = _check(tmp_path, capsys, "--json")
+    (caution,) = json.loads(out)["designs"][0]["cautions"]
+    assert caution["severity"] == "hazard" and "licensed practice" in caution["note"]
