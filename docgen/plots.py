@@ -174,8 +174,7 @@ def curves(freq_hz: Sequence[float], series: Sequence[tuple[str, Sequence[float]
     ax.yaxis.set_major_formatter(_eng(unit))
     ax.set_ylabel(ylabel)
     ax.set_xlabel("frequency")
-    if len(series) > 1:
-        ax.legend(loc="best", fontsize=7.5, frameon=False)
+    ax.legend(loc="best", fontsize=7.5, frameon=False)  # names the curve, even a single one
     _draw_marks(axes, marks)
     return _to_svg(fig)
 
