@@ -111,6 +111,9 @@ def _corners(freq: Array, gain: Array, peak_index: Array, peak_f: Array, peak_g:
         with np.errstate(divide="ignore", invalid="ignore"):
             guess = log_out + res_out / (res_out - res_in) * (log_in - log_out)
         guess = np.where(np.isfinite(guess), guess, 0.5 * (log_in + log_out))
+        # inside the bracket (and on it where the sweep has no crossing: nothing to find)
+        guess = np.where(has, np.clip(guess, np.minimum(log_in, log_out),
+                                      np.maximum(log_in, log_out)), log_in)
         res = evaluate_db(guess) - level
         above = res >= 0
         # Illinois: when the same end moves twice running, halve the other end's residual.
