@@ -282,3 +282,20 @@ def test_requirement_across_boards_reads_the_boards() -> None:
     worst = min(results["spread"]["samples"]["voltage at mid"],
                 key=lambda v: min(v - (10 * RATIO - half), 10 * RATIO + half - v))
     assert verdict["worst"] == pytest.approx(worst)
+
+
+def test_each_boards_corner_is_its_own_rc_corner() -> None:
+    """First-order low-pass: |H| is 3.01 dB down at f = 1/(2πRC) (any circuits textbook, e.g.
+    Horowitz & Hill, *The Art of Electronics*); each board with its own drawn R and C."""
+    circuit = ("VS signal 1 V 1 kHz : in gnd\nR1 resistor 1k 1% : in out\n"
+               "C1 capacitor 100n 10% : out gnd")
+    bench = "input VS\noutput out\nfrequencies 10 Hz .. 1 MHz\nboards 300\nseed 4"
+    results = solved(circuit, bench)
+    draws = sampling.draw(variations(make_circuit(circuit, bench=bench)), 300, 4, "uniform",
+                          "spread-test.md")
+    corner = 1 / (2 * math.pi * draws[("R1", "value")] * draws[("C1", "value")])
+    # Midband is the largest gain over the sweep (DEVELOPERS.md): here the 10 Hz start, a hair
+    # below DC, so the −3.01 dB point (half that power) sits at fc·√(1 + 2·(10 Hz/fc)²).
+    expected = corner * np.sqrt(1 + 2 * (10.0 / corner) ** 2)
+    np.testing.assert_allclose(results["spread"]["samples"]["high corner"], expected, rtol=1e-7)
+    assert results["spread"]["samples"]["low corner"] == [None] * 300  # direct-coupled
