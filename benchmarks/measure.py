@@ -40,13 +40,37 @@ def timed(run: Callable[[], Any]) -> tuple[float, float, Any]:
     return time.perf_counter() - wall, time.process_time() - cpu, result
 
 
+#: where a frozen copy of docgen lives for this run (see :func:`freeze_code`), if any
+FROZEN: dict[str, str] = {}
+
+
+def freeze_code(folder: Path) -> None:
+    """Copy the docgen package as it is now into ``folder`` and run every later command with
+    it.  Others edit the shared working tree while a long run goes on, and the site cache's key
+    covers docgen's own files: without a frozen copy, a "no-change" rebuild would solve again."""
+    import shutil
+
+    import docgen
+
+    source = Path(docgen.__file__).resolve().parent
+    shutil.copytree(source, folder / "docgen", ignore=shutil.ignore_patterns("__pycache__"))
+    FROZEN["PYTHONPATH"] = str(folder)
+
+
+def docgen_command(*args: str) -> list[str]:
+    """A ``docgen`` command line (the frozen copy when there is one)."""
+    return [sys.executable, "-c", "import sys; from docgen.cli import main; sys.exit(main())",
+            *args]
+
+
 def command(args: Sequence[str], cwd: Path | str | None = None) -> tuple[float, float, str]:
     """Run a command in a fresh process: wall seconds, CPU seconds of it and its children
     (user + system), and its stdout.  Raise with its stderr when it exits above 1 (exit 1 is a
     failing requirement, which a benchmark record may well have)."""
     before = resource.getrusage(resource.RUSAGE_CHILDREN)
     start = time.perf_counter()
-    done = subprocess.run(list(args), cwd=cwd, capture_output=True, text=True)
+    done = subprocess.run(list(args), cwd=cwd, capture_output=True, text=True,
+                          env={**os.environ, **FROZEN})
     wall = time.perf_counter() - start
     after = resource.getrusage(resource.RUSAGE_CHILDREN)
     if done.returncode > 1:

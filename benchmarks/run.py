@@ -25,7 +25,7 @@ from typing import Any
 sys.path.insert(0, str(Path(__file__).resolve().parent))
 
 import measure  # noqa: E402 - benchmarks/ is not a package
-from measure import child, command, median  # noqa: E402
+from measure import child, command, docgen_command, median  # noqa: E402
 
 PARTS = ("analyses", "spread", "draw", "site", "generated", "check")
 REPO = Path(__file__).resolve().parent.parent
@@ -118,8 +118,9 @@ def bench_draw(table: Table, args: argparse.Namespace) -> None:
 
 
 def _build(designs: Path, work: Path, jobs: int) -> tuple[float, float, str]:
-    return command(["docgen", "build", str(designs), "--out", str(work / "site"), "--cache",
-                    str(work / "cache"), "--jobs", str(jobs), "--quiet"], cwd=designs.parent)
+    return command(docgen_command("build", str(designs), "--out", str(work / "site"), "--cache",
+                                  str(work / "cache"), "--jobs", str(jobs), "--quiet"),
+                   cwd=designs.parent)
 
 
 def _touch_one(designs: Path, round_number: int) -> None:
@@ -193,7 +194,7 @@ def bench_check(table: Table, args: argparse.Namespace) -> None:
 
     with tempfile.TemporaryDirectory(prefix="docgen-bench-") as folder:
         repo = make_demo_repo(Path(folder) / "demo")
-        runs = [command(["docgen", "check"], cwd=repo)
+        runs = [command(docgen_command("check"), cwd=repo)
                 for _ in range(1 if args.quick else args.repeats)]
         start = [command([sys.executable, "-c", "import docgen.cli"], cwd=repo)
                  for _ in range(args.repeats)]
@@ -270,6 +271,9 @@ def main(argv: list[str] | None = None) -> int:
         return 0
     args = parse(argv)
     print(measure.machine(), flush=True)
+    frozen = tempfile.TemporaryDirectory(prefix="docgen-bench-code-")
+    measure.freeze_code(Path(frozen.name))
+    print("docgen: a copy of the working tree's docgen/ taken at the start (others may edit it)")
     print(f"analyses rows: {args.clock} seconds; builds and check: wall, with CPU in the note")
     table = Table()
     benches = {"analyses": bench_analyses, "spread": bench_spread, "draw": bench_draw,
