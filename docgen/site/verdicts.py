@@ -121,6 +121,13 @@ def caution_items(results: Results | None) -> list[dict[str, str]]:
     return sorted(items, key=lambda c: order[c["level"]])
 
 
+def _percent(error: float) -> str:
+    """A hand estimate's error: two decimals are plenty; below 0.01 % it is exact to the page."""
+    if abs(error) < 0.005:
+        return "< 0.01 %"
+    return format_eng(round(error, 2), "%")
+
+
 def estimate_table(results: Results | None) -> dict[str, Any] | None:
     """Hand estimates beside the solved values, with the difference in percent."""
     rows = []
@@ -134,7 +141,7 @@ def estimate_table(results: Results | None) -> dict[str, Any] | None:
                      format_value(estimate, unit) if isinstance(estimate, (int, float)) else "",
                      format_value(solved, unit) if isinstance(solved, (int, float)) else
                      str(item.get("reason") or "not computed"),
-                     format_eng(error, "%") if isinstance(error, (int, float)) else ""])
+                     _percent(error) if isinstance(error, (int, float)) else ""])
     if not rows:
         return None
     return {"caption": "Estimates written in the design file, evaluated on its parts",
