@@ -158,3 +158,13 @@ L1 inductor 10m : top gnd
     assert energy[0] == pytest.approx(0.5e-6, rel=1e-2)
     assert np.max(np.abs(energy / energy[1] - 1)) < 1e-9
     assert np.max(np.abs(voltage[-40:])) == pytest.approx(np.sqrt(2 * energy[1] / 1e-6), rel=1e-2)
+
+
+def test_step_response_helper_on_an_rc():
+    # the same RC charging curve, 1 − e^(−t/RC), through integrate.step_response (BDF2)
+    from docgen.solve.integrate import step_response
+
+    circuit, network = _network(RC)
+    times, unknowns = step_response(network, 2.0, 5e-3, points=200)
+    out = unknowns[:, circuit.net_index["out"]]
+    assert np.max(np.abs(out - 2.0 * (1 - np.exp(-times / 1e-3)))) < 2e-3
