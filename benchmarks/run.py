@@ -157,7 +157,7 @@ def bench_site(table: Table, args: argparse.Namespace) -> None:
 
     with tempfile.TemporaryDirectory(prefix="docgen-bench-") as folder:
         repo = make_demo_repo(Path(folder) / "demo")
-        for jobs in (1, 2):
+        for jobs in (2,) if args.quick else (1, 2):
             build_rows(table, "demo", repo / "designs", Path(folder), jobs,
                        1 if args.quick else args.repeats)
 
@@ -167,10 +167,10 @@ def bench_generated(table: Table, args: argparse.Namespace) -> None:
     from generate import make_record
 
     count, revisions = args.designs, args.revisions
-    sizes = sorted({max(1, count // 4), count})
+    sizes = [count] if args.quick else sorted({max(1, count // 4), count})
     cold: dict[tuple[int, int], float] = {}
     for size in sizes:
-        for jobs in (1, 2) if size == count else (2,):
+        for jobs in (1, 2) if size == count and not args.quick else (2,):
             with tempfile.TemporaryDirectory(prefix="docgen-bench-") as folder:
                 designs = make_record(Path(folder) / "record", size, revisions)
                 label = f"{size} generated x {revisions} revisions"
@@ -241,13 +241,13 @@ def parse(argv: list[str] | None) -> argparse.Namespace:
     """The script's options."""
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     parser.add_argument("--quick", action="store_true",
-                        help="a short run: two designs, 3 repeats, 1k/10k samples, a small "
-                        "generated record")
+                        help="a short run: two designs, 3 repeats, 1k/10k samples, builds once "
+                        "with --jobs 2 only, a generated record of 2 designs x 2 revisions")
     parser.add_argument("--only", nargs="+", choices=PARTS, default=None, metavar="PART",
                         help=f"run only these parts ({', '.join(PARTS)})")
     parser.add_argument("--repeats", type=int, default=None, help="runs per median (5; quick 3)")
     parser.add_argument("--designs", type=int, default=None,
-                        help="designs in the generated record (200; quick 4)")
+                        help="designs in the generated record (200; quick 2)")
     parser.add_argument("--revisions", type=int, default=None,
                         help="revisions of each generated design (10; quick 2)")
     parser.add_argument("--sections", action="store_true",
@@ -259,7 +259,7 @@ def parse(argv: list[str] | None) -> argparse.Namespace:
     args = parser.parse_args(argv)
     args.repeats = args.repeats or (3 if args.quick else 5)
     args.cold_repeats = 2 if args.quick else 3
-    args.designs = args.designs or (4 if args.quick else 200)
+    args.designs = args.designs or (2 if args.quick else 200)
     args.revisions = args.revisions or (2 if args.quick else 10)
     return args
 

@@ -59,7 +59,7 @@ def test_script_options() -> None:
     import run
 
     quick = run.parse(["--quick", "--only", "spread", "check"])
-    assert (quick.repeats, quick.designs, quick.revisions) == (3, 4, 2)
+    assert (quick.repeats, quick.designs, quick.revisions) == (3, 2, 2)
     assert quick.only == ["spread", "check"]
     full = run.parse([])
     assert (full.repeats, full.designs, full.revisions) == (5, 200, 10)
