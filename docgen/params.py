@@ -78,10 +78,8 @@ _DIODE = [
     _p("max_current", "A", INF, "rating: largest continuous forward current", True),
 ]
 
-_JFET = [
-    _p("drain_saturation_current", "A", 1e-3, "IDSS: drain current at VGS = 0 in saturation "
-       "(Shichman–Hodges square law)", True),
-    _p("pinch_off_voltage", "V", 2.0, "magnitude of the pinch-off voltage |VP|", True),
+# Shared by junction and insulated-gate FETs (after each kind's own square-law pair).
+_FET_COMMON = [
     _p("channel_length_modulation", "1/V", 0.0, "λ: drain current grows as (1 + λ·VDS)"),
     _p("gate_source_capacitance", "F", 0.0, "small-signal gate–source capacitance Cgs"),
     _p("gate_drain_capacitance", "F", 0.0, "small-signal gate–drain capacitance Cgd"),
@@ -90,16 +88,18 @@ _JFET = [
     _p("max_drain_source_voltage", "V", INF, "rating: largest drain–source voltage", True),
 ]
 
+_JFET = [
+    _p("drain_saturation_current", "A", 1e-3, "IDSS: drain current at VGS = 0 in saturation "
+       "(Shichman–Hodges square law)", True),
+    _p("pinch_off_voltage", "V", 2.0, "magnitude of the pinch-off voltage |VP|", True),
+    *_FET_COMMON,
+]
+
 _MOSFET = [
     _p("threshold_voltage", "V", 2.0, "magnitude of the threshold voltage |VT|", True),
     _p("transconductance_coefficient", "A/V²", 0.1, "K in the square law ID = K·(VGS − VT)² "
        "(Shichman–Hodges)", True),
-    _p("channel_length_modulation", "1/V", 0.0, "λ: drain current grows as (1 + λ·VDS)"),
-    _p("gate_source_capacitance", "F", 0.0, "small-signal gate–source capacitance Cgs"),
-    _p("gate_drain_capacitance", "F", 0.0, "small-signal gate–drain capacitance Cgd"),
-    _p("flicker_corner", "Hz", 0.0, "1/f noise corner of the channel noise (0: none)"),
-    _p("max_power", "W", INF, "rating: largest continuous dissipation", True),
-    _p("max_drain_source_voltage", "V", INF, "rating: largest drain–source voltage", True),
+    *_FET_COMMON,
 ]
 
 _OPAMP = [

@@ -13,10 +13,10 @@ import sys
 import numpy as np
 import pytest
 from scipy import stats
+from solver_helpers import make_circuit
 
 from docgen.elaborate import Variation, variations
 from docgen.solve import sampling
-from solver_helpers import make_circuit
 
 RESISTOR = Variation("R1", "value", 1000.0, 950.0, 1050.0, "tolerance")
 BETA = Variation("Q1", "beta", 150.0, 100.0, 300.0, "model range")
