@@ -12,91 +12,26 @@ from __future__ import annotations
 
 import math
 from collections.abc import Sequence
-from dataclasses import dataclass
 from typing import Any
 
-from docgen.design import Design, Limit, Requirement
-from docgen.diagnostics import Diagnostic, Span
+from docgen.design import Design
+from docgen.limits import (  # noqa: F401 - re-exported: the verdicts' vocabulary
+    UNIT_FACTORS,
+    Checked,
+    bounds,
+    margin,
+    read,
+    requirement_metrics,
+    yield_of,
+)
 from docgen.metric_values import evaluate, samples
-from docgen.metrics import Metric, MetricError, parse, unknown_names
+from docgen.metrics import Metric
 
-#: limit units each metric unit accepts ("" is a plain number in the metric's unit), and the
-#: factor that turns the limit into the metric's unit.
-_PP_FROM_RMS = 2 * math.sqrt(2)  # a sine's peak-to-peak is 2√2 times its rms
-UNIT_FACTORS: dict[str, dict[str, float]] = {
-    "V pp": {"V pp": 1.0, "V": 1.0, "V rms": _PP_FROM_RMS, "": 1.0},
-    "V": {"V": 1.0, "V rms": 1.0, "": 1.0},
-    "%": {"%": 1.0},
-}
 STRICT_STATUSES = ("approved", "review")
-
-
-@dataclass(frozen=True, slots=True)
-class Checked:
-    """A requirement whose metric read: the metric and the factor applied to its limit."""
-
-    requirement: Requirement
-    metric: Metric
-    factor: float
-
-
-def _units_fit(metric: Metric, limit: Limit) -> float | None:
-    """The factor from the limit's unit to the metric's unit, or ``None`` if they differ."""
-    table = UNIT_FACTORS.get(metric.unit, {metric.unit: 1.0, "": 1.0})
-    return table.get(limit.unit)
-
-
-def read(design: Design) -> tuple[list[Checked], list[Diagnostic]]:
-    """Parse every requirement's metric and check names and units; report what does not fit."""
-    lines = design.source.splitlines()
-    parts = {p.name: p.kind for p in design.parts}
-    checked, problems = [], []
-
-    def problem(span: Span, message: str, hint: str | None = None) -> None:
-        text = lines[span.line - 1] if 0 < span.line <= len(lines) else None
-        problems.append(Diagnostic(design.path, span, "error", message, hint, text))
-
-    for requirement in design.requirements:
-        at = requirement.metric_span
-        try:
-            metric = parse(requirement.metric)
-        except MetricError as exc:
-            problem(Span(at.line, at.col + exc.col - 1, exc.width), exc.message, exc.hint)
-            continue
-        names = unknown_names(metric, parts, design.nets)
-        if names:
-            problem(at, names[0])
-            continue
-        factor = _units_fit(metric, requirement.limit)
-        if factor is None:
-            unit = requirement.limit.unit or "a plain number"
-            problem(requirement.limit_span, f"the limit is in {unit} but '{metric.text}' is "
-                    f"in {metric.unit}", f"write the limit in {metric.unit}")
-            continue
-        checked.append(Checked(requirement, metric, factor))
-    return checked, problems
-
-
-def margin(value: float, low: float | None, high: float | None) -> tuple[float, float | None]:
-    """(margin, margin as a fraction of the nearest limit's magnitude); positive passes."""
-    candidates = []
-    if low is not None:
-        candidates.append((value - low, low))
-    if high is not None:
-        candidates.append((high - value, high))
-    distance, bound = min(candidates)
-    return distance, (distance / abs(bound) if bound else None)
-
-
-def _bounds(checked: Checked) -> tuple[float | None, float | None]:
-    limit, scale = checked.requirement.limit, checked.factor
-    return (None if limit.low is None else limit.low * scale,
-            None if limit.high is None else limit.high * scale)
-
 
 def _across(checked: Checked, results: dict[str, Any]) -> dict[str, Any]:
     """Worst value and yield over boards and/or temperature points."""
-    low, high = _bounds(checked)
+    low, high = bounds(checked)
     values: list[float | None] = []
     for what in checked.requirement.across:
         found, reason = samples(checked.metric, results, what)
@@ -128,7 +63,7 @@ def _across(checked: Checked, results: dict[str, Any]) -> dict[str, Any]:
 def verdict(checked: Checked, results: dict[str, Any], status: str) -> dict[str, Any]:
     """The verdict of one requirement as a plain dict (see docs/results.md, ``checks``)."""
     requirement, metric = checked.requirement, checked.metric
-    low, high = _bounds(checked)
+    low, high = bounds(checked)
     value = evaluate(metric, results)
     row: dict[str, Any] = {
         "metric": metric.text, "key": metric.key, "unit": metric.unit,
@@ -172,42 +107,11 @@ def analyse(ctx: Any) -> list[dict[str, Any]]:
     return verdicts(ctx.design, ctx.results)
 
 
-def yield_of(design: Design, values: dict[str, Sequence[float | None]]
-             ) -> tuple[float | None, dict[str, float]]:
-    """The fraction of boards meeting every requirement, and each requirement's own fraction.
-
-    For the spread analysis: ``values`` maps a metric's canonical key to its value on each
-    board (``None`` for a board that did not solve: it fails).  Requirements whose metric has
-    no values are left out; the overall yield is ``None`` when none has values.
-    """
-    checked, _ = read(design)
-    passing: list[list[bool]] = []
-    each: dict[str, float] = {}
-    for item in checked:
-        found = values.get(item.metric.key)
-        if found is None:
-            continue
-        low, high = _bounds(item)
-        ok = [v is not None and math.isfinite(v) and margin(v, low, high)[0] >= 0
-              for v in found]
-        passing.append(ok)
-        each[f"{item.metric.text} : {item.requirement.limit.text}"] = sum(ok) / len(ok) \
-            if ok else 0.0
-    if not passing:
-        return None, each
-    boards = min(len(p) for p in passing)
-    overall = sum(all(p[i] for p in passing) for i in range(boards)) / boards if boards else 0.0
-    return overall, each
-
-
 def metrics_of(design: Design) -> Sequence[Metric]:
     """The metrics a page's requirements and estimates use (for ``sections_needed``)."""
     from docgen.check import estimates
 
-    checked, _ = read(design)
-    found = [c.metric for c in checked]
-    if any(c.requirement.across for c in checked):
-        found.append(parse("yield"))  # the spread analysis must run
+    found = requirement_metrics(design)
     for estimate in estimates.read(design)[0]:
         found.append(estimate.metric)
         found += estimates.metrics_in(estimate)

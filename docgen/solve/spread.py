@@ -28,9 +28,8 @@ The pipeline stores the returned dict under ``spread``; the temperature results 
 ``spread.temperature`` and the sensitivities at ``spread.sensitivity`` (one analysis writes one
 section; :mod:`docgen.metric_values` and the site read them there).  Per-board values are keyed by
 the metric's canonical spelling (``spread.samples``), as docs/results.md specifies; the yield is
-computed by :func:`docgen.check.requirements.yield_of` from those samples with the verdicts'
-own limits (imported inside :func:`analyse`: the one place the solve stage asks the check stage
-for the meaning of a limit, so the two never disagree).
+computed by :func:`docgen.limits.yield_of` from those samples with the same limits the check
+stage's verdicts use (both read requirements through :mod:`docgen.limits`).
 """
 
 from __future__ import annotations
@@ -44,6 +43,7 @@ import numpy as np
 
 from docgen.diagnostics import AnalysisError
 from docgen.elaborate import Circuit, Variation, variations
+from docgen.limits import requirement_metrics, yield_of
 from docgen.metrics import Metric
 from docgen.solve import board_metrics, sampling
 from docgen.solve.operating_point import require_converged, solve_op
@@ -135,10 +135,8 @@ def _ports(ctx: Any) -> tuple[str, str] | None:
 
 def _plan(ctx: Any, ports: tuple[str, str] | None) -> tuple[list[Metric], list[str]]:
     """(metrics sampled, texts of the requirement metrics that cannot be sampled)."""
-    from docgen.check.requirements import metrics_of
-
     wanted = board_metrics.headline(ctx.circuit, ports)
-    for metric in metrics_of(ctx.design):
+    for metric in requirement_metrics(ctx.design):
         inner = metric.args.get("metric") if metric.form == "drift" else None
         wanted.append(inner or metric)
     sampled, skipped = [], []
@@ -268,8 +266,6 @@ def _temperature(metrics: Sequence[Metric], values: dict[str, Array], rows: _Row
 
 
 def _yield(design: Any, samples: dict[str, list]) -> tuple[float | None, dict[str, float]]:
-    from docgen.check.requirements import yield_of  # the verdicts' own limits (see above)
-
     return yield_of(design, samples)
 
 
