@@ -82,7 +82,23 @@ def load(paths: list[str], library: list[str] | None = None) -> CheckRun:
         records.append(load_record(path, roots))
         files += len(page_files(path))
     diagnostics = missing + [d for r in records for d in r.all_diagnostics]
+    diagnostics += _layout_problems(records)
     return CheckRun(records, _unique(diagnostics), files)
+
+
+def _layout_problems(records: list[Record]) -> list[Diagnostic]:
+    """Diagnostics of the designs' ``layout`` blocks, so a bad hint shows before any drawing."""
+    from docgen.diagnostics import InputError
+    from docgen.draw.hints import read_hints  # light: no schemdraw until a drawing is made
+
+    found: list[Diagnostic] = []
+    for record in records:
+        for design in record.designs:
+            try:
+                read_hints(design)
+            except InputError as exc:
+                found += exc.diagnostics
+    return found
 
 
 def _unique(diagnostics: list[Diagnostic]) -> list[Diagnostic]:
