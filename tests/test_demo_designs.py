@@ -11,10 +11,10 @@ from __future__ import annotations
 from pathlib import Path
 
 import pytest
+from demo_helpers import DESIGNS, design, record, solve, verdicts, with_value
 
 from docgen import eseries, pipeline
 from docgen.check.gate import sections_for
-from tests.demo_helpers import DESIGNS, design, record, solve, verdicts, with_value
 
 DESIGN_FILES = sorted(p.name for p in DESIGNS.glob("*.md")
                       if "```circuit" in p.read_text(encoding="utf-8"))

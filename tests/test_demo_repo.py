@@ -6,10 +6,10 @@ import subprocess
 from pathlib import Path
 
 import pytest
+from demo_helpers import DESIGNS
 
 from docgen.demo_repo import DemoScriptError, make_demo_repo, replaced
 from docgen.reader import read_text
-from tests.demo_helpers import DESIGNS
 
 
 def git(repo: Path, *args: str) -> str:

@@ -6,8 +6,7 @@ from __future__ import annotations
 from pathlib import Path
 
 import pytest
-
-from tests.demo_helpers import DESIGNS
+from demo_helpers import DESIGNS
 
 
 @pytest.mark.slow

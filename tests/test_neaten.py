@@ -12,12 +12,12 @@ import shutil
 from pathlib import Path
 
 import pytest
+from reader_helpers import meaning
 
 from docgen.cli import main
 from docgen.diagnostics import InputError
 from docgen.neaten import neaten_text
 from docgen.reader import read_text
-from tests.reader_helpers import meaning
 
 FIXTURES = Path(__file__).parent / "fixtures" / "neaten"
 DESIGNS = Path(__file__).parent.parent / "designs"

@@ -8,11 +8,11 @@ from pathlib import Path
 import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
+from reader_helpers import meaning
 
 from docgen.diagnostics import Diagnostic, InputError
 from docgen.neaten import neaten_text
 from docgen.reader import read_text
-from tests.reader_helpers import meaning
 
 DESIGNS = sorted((Path(__file__).parent.parent / "designs").rglob("*.md"))
 SEEDS = [p.read_text(encoding="utf-8") for p in DESIGNS] + [

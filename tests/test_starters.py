@@ -6,12 +6,12 @@ from __future__ import annotations
 from pathlib import Path
 
 import pytest
+from demo_helpers import solve, verdicts
 
 from docgen import cli, starters
 from docgen.diagnostics import DocgenError
 from docgen.reader import read_text
 from docgen.record import load_record
-from tests.demo_helpers import solve, verdicts
 
 REQUIRED = {"common-emitter", "emitter-follower", "noninverting-opamp", "inverting-opamp",
             "jfet-buffer"}
