@@ -17,6 +17,25 @@ from typing import Any
 HERE = Path(__file__).resolve().parent
 
 
+def _spin(seconds: float) -> int:
+    """Count loop turns for ``seconds`` (a CPU-bound probe)."""
+    end, turns = time.perf_counter() + seconds, 0
+    while time.perf_counter() < end:
+        turns += 1
+    return turns
+
+
+def parallel_capacity(seconds: float = 0.5) -> float:
+    """How many cores' worth of work two busy processes get, against one (2.0 on two idle
+    cores; near 1.0 when other work holds a core): what ``--jobs 2`` can gain right now."""
+    from concurrent.futures import ProcessPoolExecutor
+
+    with ProcessPoolExecutor(2) as pool:
+        one = pool.submit(_spin, seconds).result()
+        two = sum(pool.map(_spin, [seconds, seconds]))
+    return two / one
+
+
 def machine() -> str:
     """Cores, Python, numpy and scipy versions, and the load at the start."""
     import numpy
@@ -25,7 +44,8 @@ def machine() -> str:
     load = os.getloadavg()[0] if hasattr(os, "getloadavg") else float("nan")
     return (f"machine: {os.cpu_count()} cores ({platform.machine()}), Python "
             f"{platform.python_version()}, numpy {numpy.__version__}, scipy {scipy.__version__}, "
-            f"load average {load:.1f} at start")
+            f"load average {load:.1f} at start, parallel capacity x{parallel_capacity():.2f} "
+            f"(two busy processes against one)")
 
 
 def median(values: Sequence[float]) -> float:
