@@ -9,6 +9,7 @@ for the content-based cache key.
 from __future__ import annotations
 
 import posixpath
+import re
 from collections.abc import Callable, Iterable, Iterator, Mapping
 from dataclasses import dataclass, field
 from functools import partial
@@ -92,11 +93,23 @@ def load_record(root: str | Path, library_roots: Iterable[str | Path] = ()) -> R
     """
     files = page_files(root)
     extra = sorted({f for r in library_roots for f in page_files(r)} - set(files))
+    extra = [f for f in extra if _declares_models(f)]  # other pages there are not ours to judge
     pages, diagnostics = _read_all(_file_readers(files))
     extra_pages, extra_diagnostics = _read_all(_file_readers(extra))
     for path, items in extra_diagnostics.items():  # broken library pages still get reported
         diagnostics.setdefault(path, items)
     return _assemble(str(root), pages, extra_pages, diagnostics)
+
+
+_MODELS_FENCE = re.compile(r"^[ \t>*+-]*(`{3,}|~{3,})[ \t]*models\b", re.MULTILINE)
+
+
+def _declares_models(path: Path) -> bool:
+    """True if the page has a ``models`` fence: only such pages can lend models to a design."""
+    try:
+        return _MODELS_FENCE.search(path.read_text(encoding="utf-8", errors="replace")) is not None
+    except OSError:
+        return False
 
 
 def load_texts(root: str, texts: Mapping[str, str],

@@ -78,7 +78,10 @@ def load(paths: list[str], library: list[str] | None = None) -> CheckRun:
         if not Path(path).exists():
             missing.append(Diagnostic(path, Span(1, 1), "error", "no such file or folder"))
             continue
-        roots = library + ([str(Path(path).parent)] if Path(path).is_file() else [])
+        # a single file also sees the library pages beside it (not the whole folder tree)
+        beside = sorted(str(p) for p in Path(path).parent.glob("*.md")) \
+            if Path(path).is_file() else []
+        roots = library + beside
         records.append(load_record(path, roots))
         files += len(page_files(path))
     diagnostics = missing + [d for r in records for d in r.all_diagnostics]
