@@ -16,7 +16,7 @@ from history_helpers import ScriptedRepo, git_env
 from docgen.history.approval import changed_since_approval
 from docgen.history.cache import CACHE_DIR, ResultsCache
 from docgen.history.git import Repo
-from docgen.history.snapshot import RevisionSolver
+from docgen.history.snapshot import RevisionSolver, history_sections
 from docgen.history.timeline import design_history
 from docgen.pipeline import run
 
@@ -96,14 +96,14 @@ def build(root):
 
 
 class CountingSolve:
-    """The real pipeline, counting its calls."""
+    """The real pipeline as the history runs it, counting its calls."""
 
     def __init__(self):
         self.calls = 0
 
     def __call__(self, design, library):
         self.calls += 1
-        return run(design, library)
+        return run(design, library, only=history_sections(design))
 
 
 @pytest.fixture(scope="module")
@@ -222,7 +222,7 @@ def test_internal_error_in_one_revision_is_reported_not_cached(scripted, tmp_pat
         calls.append(design.path)
         if design.part("RC").value_text == "4k7":
             raise ZeroDivisionError("boom")
-        return run(design, library)
+        return run(design, library, only=history_sections(design))
 
     solver = RevisionSolver(ResultsCache(tmp_path / "cache"), crash_on_first_cut)
     history = design_history(repo, RENAMED, "designs", solver)

@@ -238,7 +238,9 @@ class RevisionSolver:
         self.solved += 1
         base = {"schema": "docgen-results/1", "design": design_summary(design)}
         try:
-            return round_results((self.solve or run)(design, library)), True
+            if self.solve is not None:
+                return round_results(self.solve(design, library)), True
+            return round_results(run(design, library, only=history_sections(design))), True
         except DocgenError as exc:  # the circuit cannot be solved as drawn at this revision
             errors = [{"analysis": "elaborate", **d.to_json()} for d in exc.diagnostics]
             return {**base, "errors": errors}, True
@@ -248,6 +250,19 @@ class RevisionSolver:
             errors = [{"analysis": "solve", "path": design.path, "line": 1, "col": 1,
                        "severity": "error", "message": message, "hint": None}]
             return {**base, "errors": errors}, False
+
+
+def history_sections(design: Design) -> frozenset[str]:
+    """The analyses an old revision needs: what its requirements read (so every verdict in the
+    row is real) plus the small-signal headline figures.  The large-signal swing search and the
+    board spread run only where a requirement asks for them: they cost seconds per revision,
+    and a history has many revisions."""
+    from docgen.check.gate import sections_for
+
+    return sections_for(design) | HEADLINE_SECTIONS
+
+
+HEADLINE_SECTIONS = frozenset({"op", "ac", "noise"})
 
 
 def solve_texts(path: str, source: str, library_texts: tuple[tuple[str, str], ...]
