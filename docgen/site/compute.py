@@ -8,6 +8,7 @@ diagnostics in its bundle and never stops the others.
 
 from __future__ import annotations
 
+import json
 import traceback
 from collections.abc import Mapping
 from pathlib import Path
@@ -25,6 +26,11 @@ def _internal_error(design: Design, stage: str, exc: BaseException) -> dict[str,
     return {"path": design.path, "line": 1, "col": 1, "severity": "error",
             "message": f"docgen failed while {stage}: {type(exc).__name__}: {exc}{where}",
             "hint": "this is a docgen bug; please report it with the design file"}
+
+
+def results_text(results: dict[str, Any]) -> str:
+    """The published ``results.json``: sorted keys, one-space indent, UTF-8 text."""
+    return json.dumps(results, sort_keys=True, indent=1, ensure_ascii=False) + "\n"
 
 
 def compute_bundle(design: Design, library: Mapping[str, ModelDef]) -> dict[str, Any]:
@@ -46,6 +52,9 @@ def compute_bundle(design: Design, library: Mapping[str, ModelDef]) -> dict[str,
         results = None
     bundle["results"] = results
     if results is not None:
+        # the published text is made once and cached with the bundle: a no-change rebuild
+        # then copies it instead of re-encoding (indented JSON is the slow encoder)
+        bundle["results_json"] = results_text(results)
         try:
             bundle["sections"] = build_sections(design, results)
         except Exception as exc:  # noqa: BLE001

@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-import json
 import subprocess
 from importlib import resources
 from pathlib import Path
@@ -11,6 +10,7 @@ from typing import Any
 from docgen import __version__
 from docgen.diagnostics import Diagnostic, Span
 from docgen.site import pages as page_contexts
+from docgen.site.compute import results_text
 from docgen.site.output import StagedSite
 from docgen.site.pages import SiteContext
 from docgen.site.parts import parts_csv
@@ -162,8 +162,8 @@ def _design_files(written: dict[str, str | bytes], entry: Any, page: str,
     written[f"{folder}/source.md"] = entry.source
     written[f"{folder}/parts.csv"] = parts_csv(entry.design)
     if bundle.get("results") is not None:
-        written[f"{folder}/results.json"] = json.dumps(bundle["results"], sort_keys=True,
-                                                       indent=1, ensure_ascii=False) + "\n"
+        written[f"{folder}/results.json"] = bundle.get("results_json") or \
+            results_text(bundle["results"])
     if bundle.get("schematic"):
         written[f"{folder}/schematic.svg"] = bundle["schematic"]
     for section in bundle.get("sections") or []:
