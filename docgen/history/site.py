@@ -29,12 +29,12 @@ def provide(site: ProviderInput) -> Contribution:
     contribution = Contribution()
     paths = {rel: rel if root in ("", ".") else f"{root.rstrip('/')}/{rel}" for rel in site.designs}
     _seed(site, solver)
-    snaps = [s for rel in site.designs for s in revision_snapshots(repo, paths[rel], root)[2]]
-    solver.prefetch(snaps, site.jobs)  # a first build solves new revisions in parallel
-    for rel in site.designs:
+    found = {rel: revision_snapshots(repo, paths[rel], root) for rel in site.designs}
+    solver.prefetch([s for rel in site.designs for s in found[rel][2]], site.jobs)
+    for rel in site.designs:  # (a first build solves new revisions in parallel, just above)
         entry = site.record.entries[rel]
         title = entry.design.header.title if entry.design is not None else rel
-        history = design_history(repo, paths[rel], root, solver)
+        history = design_history(repo, paths[rel], root, solver, found=found[rel])
         _design_pages(site, contribution, rel, title or rel, history,
                       history["changed_since_approval"], solver.cache)
     return contribution

@@ -21,7 +21,8 @@ Json = dict[str, Any]
 
 
 def design_history(repo: Repo | None, rel: str, designs_root: str, solver: RevisionSolver,
-                   *, with_diffs: bool = True) -> Json:
+                   *, with_diffs: bool = True,
+                   found: tuple[Snapshot | None, Listing, list[Snapshot]] | None = None) -> Json:
     """The history of the design at ``rel`` (relative to the repository root), newest first.
 
     :returns: ``{"path", "available", "unavailable", "rows": [...], "diffs": [...],
@@ -30,8 +31,10 @@ def design_history(repo: Repo | None, rel: str, designs_root: str, solver: Revis
         (older) with row ``i``; ``results[i]`` is row ``i``'s results dict;
         ``changed_since_approval`` is the review-integrity flag (see
         :mod:`docgen.history.approval`) or ``None``.
+    :param found: what :func:`revision_snapshots` returned for this design, if the caller has
+        it already (it asks git several times; the site asks once per design).
     """
-    current, listing, snaps = revision_snapshots(repo, rel, designs_root)
+    current, listing, snaps = found or revision_snapshots(repo, rel, designs_root)
     if not listing.available:
         return _unavailable(rel, listing.unavailable)
     results = [solver.results(s) for s in snaps]
