@@ -23,8 +23,10 @@ from pathlib import Path
 
 #: Where the demo repository goes when no path is given.
 DEFAULT_PATH = Path("build/demo-repo")
-#: The bundled designs the script replays (a source checkout's ``designs/`` folder).
-DEFAULT_SOURCE = Path(__file__).resolve().parent.parent / "designs"
+#: The bundled designs the script replays: ``designs/`` in the working folder (the project's
+#: own checkout, as for ``docgen build``), else beside the package in a source checkout.
+DEFAULT_SOURCE = Path("designs")
+_CHECKOUT_SOURCE = Path(__file__).resolve().parent.parent / "designs"
 
 PEOPLE = {
     "Ines": ("Ines Okafor", "ines.okafor@carrowfen.example"),
@@ -219,6 +221,8 @@ def make_demo_repo(path: str | Path = DEFAULT_PATH, source: str | Path = DEFAULT
     has ``.demo-repo``).
     """
     repo, source = Path(path), Path(source)
+    if source == DEFAULT_SOURCE and not (source / "library").is_dir():
+        source = _CHECKOUT_SOURCE  # an editable install run from another folder
     if not (source / "library").is_dir():
         raise DemoScriptError(f"no designs to replay in {source}")
     _clear(repo)
