@@ -9,7 +9,6 @@ for the content-based cache key.
 from __future__ import annotations
 
 import posixpath
-import re
 from collections.abc import Callable, Iterable, Iterator, Mapping
 from dataclasses import dataclass, field
 from functools import partial
@@ -19,7 +18,7 @@ from pathlib import Path
 from docgen.design import Design, ModelDef, frozen_map
 from docgen.diagnostics import Collector, Diagnostic, DocgenError, Span, did_you_mean
 from docgen.kinds import KINDS
-from docgen.reader import read_file, read_text
+from docgen.reader import page_blocks, read_file, read_text
 from docgen.reader.common import article
 
 BUILTIN = "<built-in>"
@@ -101,15 +100,13 @@ def load_record(root: str | Path, library_roots: Iterable[str | Path] = ()) -> R
     return _assemble(str(root), pages, extra_pages, diagnostics)
 
 
-_MODELS_FENCE = re.compile(r"^[ \t>*+-]*(`{3,}|~{3,})[ \t]*models\b", re.MULTILINE)
-
-
 def _declares_models(path: Path) -> bool:
-    """True if the page has a ``models`` fence: only such pages can lend models to a design."""
+    """True if the page has a ``models`` block: only such pages can lend models to a design."""
     try:
-        return _MODELS_FENCE.search(path.read_text(encoding="utf-8", errors="replace")) is not None
+        text = path.read_text(encoding="utf-8", errors="replace")
     except OSError:
         return False
+    return any(block.tag == "models" for block in page_blocks(text))
 
 
 def load_texts(root: str, texts: Mapping[str, str],
