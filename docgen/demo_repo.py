@@ -174,24 +174,24 @@ def _script(read: Callable[[str], str]) -> list[Step]:
     ]
 
 
+def _without(text: str, start: str, separator: str, what: str) -> str:
+    """``text`` split at ``separator`` without its one piece starting with ``start``."""
+    pieces = text.split(separator)
+    found = [i for i, piece in enumerate(pieces) if piece.startswith(start)]
+    if len(found) != 1:
+        raise DemoScriptError(f"expected exactly one {what} starting {start!r}")
+    del pieces[found[0]]
+    return separator.join(pieces)
+
+
 def _without_line(text: str, start: str) -> str:
     """``text`` without its one line starting with ``start``."""
-    lines = text.split("\n")
-    found = [i for i, line in enumerate(lines) if line.startswith(start)]
-    if len(found) != 1:
-        raise DemoScriptError(f"expected exactly one line starting {start!r}")
-    del lines[found[0]]
-    return "\n".join(lines)
+    return _without(text, start, "\n", "line")
 
 
 def _without_paragraph(text: str, start: str) -> str:
     """``text`` without the one paragraph (lines up to a blank line) that starts with ``start``."""
-    paragraphs = text.split("\n\n")
-    found = [i for i, block in enumerate(paragraphs) if block.startswith(start)]
-    if len(found) != 1:
-        raise DemoScriptError(f"expected exactly one paragraph starting {start!r}")
-    del paragraphs[found[0]]
-    return "\n\n".join(paragraphs)
+    return _without(text, start, "\n\n", "paragraph")
 
 
 def _environment(step: Step) -> dict[str, str]:
