@@ -22,12 +22,31 @@ def test_no_change_rebuild_solves_nothing_and_one_change_solves_one(tmp_path: Pa
     assert first.solved == ["divider.md", "hostile.md", "rc-filter.md"]
     again = build(designs, tmp_path / "site", cache_dir=cache)
     assert again.solved == [] and sorted(again.reused) == first.solved
-    with (designs / "divider.md").open("a") as handle:
-        handle.write("\nOne more sentence of notes.\n")
+    divider = designs / "divider.md"
+    divider.write_text(divider.read_text().replace("10k 1% 0.25 W      : mid gnd",
+                                                   "11k 1% 0.25 W      : mid gnd"))
     changed = build(designs, tmp_path / "site", cache_dir=cache)
     assert changed.solved == ["divider.md"]
     assert sorted(changed.reused) == ["hostile.md", "rc-filter.md"]
-    assert "One more sentence of notes." in (tmp_path / "site" / "divider.html").read_text()
+
+
+def test_a_notes_edit_reuses_the_bundle_and_the_page_shows_the_new_notes(tmp_path: Path) -> None:
+    """The notes are rendered when the page is published, so the cached results, figures and
+    schematic stay valid (docgen/cachekey.py: design_key leaves prose out)."""
+    designs = copy_fixtures(tmp_path / "designs")
+    cache = tmp_path / "cache"
+    build(designs, tmp_path / "site", cache_dir=cache)
+    divider = designs / "divider.md"
+    divider.write_text(divider.read_text().replace(
+        "Two resistors halve the supply:", "Two equal resistors halve the supply:")
+        + "\nOne more sentence of notes.\n")
+    changed = build(designs, tmp_path / "site", cache_dir=cache)
+    assert changed.solved == []
+    assert sorted(changed.reused) == ["divider.md", "hostile.md", "rc-filter.md"]
+    page = (tmp_path / "site" / "divider.html").read_text()
+    assert "One more sentence of notes." in page and "Two equal resistors" in page
+    fresh = build(designs, tmp_path / "fresh", cache_dir=False)  # the same page without a cache
+    assert fresh.solved and (tmp_path / "fresh" / "divider.html").read_text() == page
 
 
 def _cli_build(cwd: Path, out: str, jobs: int, seed: str) -> subprocess.CompletedProcess:

@@ -1,8 +1,9 @@
 """The per-revision results cache: a revision's results are computed once, ever.
 
 Results are stored under ``.docgen-cache/history/`` (the build's cache folder), one JSON file
-per cache key (:func:`docgen.history.snapshot.content_key`: the design file's bytes, the library
-pages it uses, docgen's version and the fingerprint of its files).  Because the key is a hash
+per cache key (:func:`docgen.history.snapshot.content_key`: what solving the design reads — its
+parsed content without the notes — the library models it uses, docgen's version and the
+fingerprint of its files).  Because the key is a hash
 of content, a file is never stale: an entry is either right or never looked up again.  The
 folder survives builds, is ignored by git (it writes its own ``.gitignore``) and is safe to
 delete at any time; the next build just solves again.

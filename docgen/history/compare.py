@@ -45,7 +45,7 @@ def design_pairs(repo: Repo, rev_a: str, rev_b: str | None, designs_root: str,
         old = a.snapshot(old_path) if old_path in old_paths else None
         old_paths.discard(old_path)
         new = b.snapshot(path)
-        if old is None or old.key != new.key or old.key is None:
+        if old is None or old.key != new.key or old.key is None or old.source != new.source:
             pairs.append(Pair(old, new))
     for path in sorted(old_paths):
         if wanted is None or path in wanted:

@@ -45,7 +45,7 @@ def _seed(site: ProviderInput, solver: RevisionSolver) -> None:
     for rel in site.designs:
         entry, bundle = site.record.entries[rel], site.bundles.get(rel) or {}
         if entry.design is not None and bundle.get("results"):
-            key = content_key(entry.source, entry.library_bytes)
+            key = content_key(entry.design, site.record.library)
             solver.cache.put(key, bundle["results"], store=False)
 
 

@@ -14,7 +14,7 @@ from functools import lru_cache
 from pathlib import Path
 from typing import Any
 
-from docgen.cachekey import cache_key
+from docgen.cachekey import cache_key, design_key
 from docgen.design import Design, ModelDef
 from docgen.diagnostics import Diagnostic, DocgenError
 from docgen.history.cache import CACHE_DIR, ResultsCache
@@ -102,9 +102,23 @@ class Tree:
         if design is None:
             return Snapshot(self.label, self.rev, path, None, {}, (), None, diagnostics, source)
         uses = tuple(record.uses.get(path, ()))
-        key = content_key(self.texts[path], [self.texts[p] for p in uses])
+        key = _key_of(self.texts[path], [self.texts[p] for p in uses], design, record.library)
         return Snapshot(self.label, self.rev, path, design, record.library, uses, key,
                         diagnostics, source, tuple((p, self._text(p)) for p in uses))
+
+
+def _key_of(text: bytes, library_texts: list[bytes], design: Design,
+            library: Mapping[str, ModelDef]) -> str:
+    """:func:`content_key`, remembered by the bytes it was made from (a page's text repeats
+    across revisions; hashing bytes is cheaper than serialising the design again)."""
+    seen = cache_key(text, library_texts, extra=design.path)
+    key = _KEYS.get(seen)
+    if key is None:
+        key = _KEYS[seen] = content_key(design, library)
+    return key
+
+
+_KEYS: dict[str, str] = {}
 
 
 @lru_cache(maxsize=4096)
@@ -126,13 +140,15 @@ def read_page(text: str, path: str) -> Design:
     return found
 
 
-def content_key(design: bytes, libraries: list[bytes]) -> str:
-    """The results cache key: the design's bytes, its library pages' bytes and docgen itself
-    (its version and the fingerprint of its files, as the site build's cache uses: results made
-    by other code are never reused)."""
+def content_key(design: Design, library: Mapping[str, ModelDef]) -> str:
+    """The results cache key: what solving the design reads (:func:`docgen.cachekey.design_key`,
+    without the path: one design's revisions live under several names; the notes are not in
+    it, so a commit that changed only prose is not solved again) and docgen itself (its version
+    and the fingerprint of its files, as the site build's cache uses: results made by other
+    code are never reused)."""
     from docgen.site.cache import code_fingerprint
 
-    return cache_key(design, libraries, extra=f"history\0{code_fingerprint()}")
+    return design_key(design, library, extra=f"history\0{code_fingerprint()}", with_path=False)
 
 
 def _has_circuit(text: str) -> bool:

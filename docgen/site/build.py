@@ -17,7 +17,7 @@ from dataclasses import dataclass, field, replace
 from pathlib import Path
 from typing import Any
 
-from docgen.cachekey import cache_key
+from docgen.cachekey import design_key
 from docgen.diagnostics import Diagnostic, Span
 from docgen.site.cache import BundleCache, code_fingerprint
 from docgen.site.compute import compute_bundle, compute_in_worker, init_worker
@@ -88,16 +88,23 @@ def _progress(total: int, enabled: bool | None) -> Any:
                 leave=False)
 
 
+def bundle_key(view: RecordView, rel: str) -> str:
+    """The cache key of a design's bundle: what solving, plotting and drawing it read
+    (:func:`docgen.cachekey.design_key`; the notes are not in it, they are rendered at publish
+    time), the path as given (results and diagnostics name the file so) and docgen's own code
+    (the version alone does not change between releases)."""
+    entry = view.entries[rel]
+    design = entry.design
+    assert design is not None
+    return design_key(design, view.library, extra=f"{entry.path}\0{code_fingerprint()}")
+
+
 def solve_all(view: RecordView, wanted: list[str], options: BuildOptions,
               report: BuildReport) -> dict[str, dict[str, Any]]:
     """Bundles for the designs in ``wanted``: from the cache, or computed (in parallel)."""
     cache_root = options.cache_dir
     cache = BundleCache(None if cache_root in (None, False) else Path(cache_root))  # type: ignore[arg-type]
-    # The path is part of the key (results and diagnostics name the file as it was given), and
-    # so is docgen's own code (the version alone does not change between releases).
-    code = code_fingerprint()
-    keys = {rel: cache_key(view.entries[rel].source, view.entries[rel].library_bytes,
-                           extra=f"{view.entries[rel].path}\0{code}") for rel in wanted}
+    keys = {rel: bundle_key(view, rel) for rel in wanted}
     bundles: dict[str, dict[str, Any]] = {}
     missing = []
     for rel in wanted:

@@ -2,8 +2,9 @@
 
 A bundle holds everything slow to make for one design — its results, its figures and its
 schematic — and is stored under ``<cache>/site/<key>.json`` where the key comes from
-:func:`docgen.cachekey.cache_key` (the design file's bytes, the library pages it uses and
-docgen's version) with the path as given and :func:`code_fingerprint` as its extra part.
+:func:`docgen.cachekey.design_key` (what solving, plotting and drawing the design read: not its
+notes, which are rendered at publish time; the library models it uses; docgen's version) with
+the path as given and :func:`code_fingerprint` as its extra part.
 The folder is safe to delete at any time; entries are written atomically so a killed build
 never leaves a half-written bundle behind.
 """
