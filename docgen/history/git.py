@@ -10,8 +10,10 @@ from __future__ import annotations
 
 import os
 import subprocess
+from collections.abc import Callable
 from dataclasses import dataclass
 from pathlib import Path
+from typing import Any
 
 #: Marks one commit's header line in ``git log`` output (ASCII record separator).
 _RECORD = "\x1e"
@@ -66,11 +68,20 @@ class Commit:
 
 
 class Repo:
-    """A git work tree, addressed by its top-level folder."""
+    """A git work tree, addressed by its top-level folder.
+
+    A Repo lives for one build or one command: the commit order and the logs of library pages
+    are asked of git once per Repo, so make a new one after committing.
+    """
 
     def __init__(self, root: Path):
         self.root = Path(root)
         self._facts: dict[str, bool] = {}  # has commits / is shallow: asked once per Repo
+        # answers asked of git once per Repo: the commit order, library logs (see the class
+        # docstring) and the files of folders at commits (which never change)
+        self._memo: dict[tuple[str, ...], object] = {}
+        self._listings: dict[str, dict[str, dict[str, str]]] = {}  # rev -> folder -> path: id
+        self._blobs: dict[str, bytes] = {}
 
     @classmethod
     def find(cls, start: Path | str) -> Repo | None:
@@ -127,21 +138,64 @@ class Repo:
         """The bytes of each of ``paths`` at ``rev`` in one git call (missing files left out)."""
         if not paths:
             return {}
-        request = "".join(f"{rev}:{p}\n" for p in paths).encode("utf-8")
-        proc = subprocess.run(["git", "cat-file", "--batch"], cwd=self.root, input=request,
-                              env=git_environment(), capture_output=True, check=False)
-        if proc.returncode != 0:
-            raise GitError(proc.stderr.decode("utf-8", "replace").strip() or "git cat-file failed")
-        out, at, found = proc.stdout, 0, {}
-        for path in paths:
-            end = out.index(b"\n", at)
-            header = out[at:end].split()
-            at = end + 1
-            if len(header) == 3 and header[1] == b"blob":
-                size = int(header[2])
-                found[path] = out[at:at + size]
-                at += size + 1
-        return found
+        known = self._known_files(rev, paths)
+        if known is not None:
+            return {p: self._blobs[known[p]] for p in paths if p in known}
+        found = _cat_file(self.root, [f"{rev}:{p}" for p in paths])
+        return {p: data for p, (kind, _, data) in zip(paths, found, strict=True)
+                if kind == "blob"}
+
+    def prefetch(self, revs: list[str], folder: str, suffix: str = "") -> None:
+        """Read the files under ``folder`` at each of ``revs`` ahead, in a few git calls for
+        all of them (one per level of sub-folders, one for the contents of files ending in
+        ``suffix``), so that :meth:`files` and :meth:`read_many` of those revisions need no
+        further call.  A history reads the designs folder at every revision of every design:
+        two git processes per revision before."""
+        todo = [r for r in dict.fromkeys(revs) if folder not in self._listings.get(r, {})]
+        if not todo:
+            return
+        spec = (lambda r: f"{r}:{folder}") if folder not in ("", ".") else (
+            lambda r: f"{r}^{{tree}}")
+        roots = _cat_file(self.root, [spec(r) for r in todo])
+        trees = {oid: data for kind, oid, data in roots if kind == "tree"}
+        size = len(next(iter(trees), "")) // 2  # bytes per object id: 20 (SHA-1) or 32
+        wanted = list(trees)
+        while wanted:  # one level of sub-folders per round
+            subtrees = sorted({oid for parent in wanted for mode, _, oid in _entries(
+                trees[parent], size) if mode == "40000" and oid not in trees})
+            for oid, (kind, _, data) in zip(subtrees, _cat_file(self.root, subtrees),
+                                            strict=True):
+                trees[oid] = data if kind == "tree" else b""
+            wanted = subtrees
+        prefix = "" if folder in ("", ".") else folder.rstrip("/") + "/"
+        for rev, (kind, oid, _) in zip(todo, roots, strict=True):
+            self._listings.setdefault(rev, {})[folder] = (
+                _walk(trees, oid, prefix, size) if kind == "tree" else {})
+        blobs = sorted({oid for rev in todo for path, oid in self._listings[rev][folder].items()
+                        if path.endswith(suffix) and oid not in self._blobs})
+        for oid, (kind, _, data) in zip(blobs, _cat_file(self.root, blobs), strict=True):
+            if kind == "blob":
+                self._blobs[oid] = data
+
+    def prefetch_folder(self, folder: str, suffix: str = "") -> None:
+        """:meth:`prefetch` at every commit reachable from ``HEAD`` that changed ``folder``
+        (once per Repo): a site build reads the designs folder at each revision of each design,
+        and these are such commits."""
+        def read() -> bool:
+            spec = [] if folder in ("", ".") else ["--", folder]
+            self.prefetch(str(self.run("rev-list", "HEAD", *spec)).split(), folder, suffix)
+            return True
+
+        self._remember(("prefetch", folder, suffix), read)
+
+    def _known_files(self, rev: str, paths: list[str]) -> dict[str, str] | None:
+        """path -> blob id for ``paths`` at ``rev`` if a prefetch read them all, else None."""
+        for folder, listing in self._listings.get(rev, {}).items():
+            inside = "" if folder in ("", ".") else folder.rstrip("/") + "/"
+            if all(p.startswith(inside) and (p not in listing or listing[p] in self._blobs)
+                   for p in paths):
+                return listing
+        return None
 
     def tree_id(self, rev: str, folder: str) -> str | None:
         """The object id of ``folder`` at ``rev`` (a content hash of everything in it)."""
@@ -153,6 +207,9 @@ class Repo:
 
     def files(self, rev: str, folder: str) -> list[str]:
         """Every file under ``folder`` at ``rev`` (sorted, relative to the root)."""
+        listing = self._listings.get(rev, {}).get(folder)
+        if listing is not None:
+            return sorted(listing)
         args = ["ls-tree", "-r", "--name-only", "-z", rev]
         if folder not in ("", "."):
             args += ["--", folder]
@@ -161,8 +218,15 @@ class Repo:
 
     def order(self) -> dict[str, int]:
         """Position of every commit reachable from ``HEAD``, newest first (topological)."""
-        out = str(self.run("rev-list", "--topo-order", "HEAD"))
-        return {sha: i for i, sha in enumerate(out.split())}
+        return dict(self._remember(("order",), lambda: {
+            sha: i for i, sha in enumerate(str(self.run("rev-list", "--topo-order",
+                                                        "HEAD")).split())}))
+
+    def _remember(self, key: tuple[str, ...], compute: Callable[[], Any]) -> Any:
+        """``compute()``, asked of git once per Repo (see the class docstring)."""
+        if key not in self._memo:
+            self._memo[key] = compute()
+        return self._memo[key]
 
     # -- history -------------------------------------------------------------------------
 
@@ -179,9 +243,10 @@ class Repo:
         """
         if not paths:
             return []
-        out = str(self.run("log", "--name-status", "--no-renames", f"--format={_LOG_FORMAT}",
-                           "HEAD", "--", *paths))
-        return [c for c in _parse_log(out) if c.path in paths]
+        return list(self._remember(("log_paths", *sorted(paths)), lambda: [
+            c for c in _parse_log(str(self.run("log", "--name-status", "--no-renames",
+                                               f"--format={_LOG_FORMAT}", "HEAD", "--", *paths)))
+            if c.path in paths]))
 
     def changed_files(self, rev_a: str, rev_b: str | None, folder: str) -> list[tuple[str, str]]:
         """``(old path, new path)`` of files that differ between two revisions under ``folder``.
@@ -239,3 +304,51 @@ def _git(cwd: Path, *args: str, binary: bool = False) -> str | bytes:
         message = proc.stderr.decode("utf-8", "replace").strip() or f"git {args[0]} failed"
         raise GitError(message)
     return proc.stdout if binary else proc.stdout.decode("utf-8", "replace")
+
+
+def _cat_file(root: Path, requests: list[str]) -> list[tuple[str | None, str, bytes]]:
+    """``git cat-file --batch`` for ``requests`` (``rev:path`` or object ids) in one process:
+    (type, object id, content) of each, type ``None`` for a missing object."""
+    if not requests:
+        return []
+    proc = subprocess.run(["git", "cat-file", "--batch"], cwd=root,
+                          input="".join(f"{r}\n" for r in requests).encode("utf-8"),
+                          env=git_environment(), capture_output=True, check=False)
+    if proc.returncode != 0:
+        raise GitError(proc.stderr.decode("utf-8", "replace").strip() or "git cat-file failed")
+    out, at, found = proc.stdout, 0, []
+    for _ in requests:
+        end = out.index(b"\n", at)
+        header = out[at:end].split()
+        at = end + 1
+        if len(header) == 3 and header[2].isdigit():
+            size = int(header[2])
+            found.append((header[1].decode(), header[0].decode(), out[at:at + size]))
+            at += size + 1
+        else:  # "<request> missing" (or ambiguous)
+            found.append((None, "", b""))
+    return found
+
+
+def _entries(tree: bytes, size: int) -> list[tuple[str, str, str]]:
+    """(mode, name, object id) of each entry of a raw tree object (ids of ``size`` bytes)."""
+    out, at = [], 0
+    while at < len(tree):
+        space = tree.index(b" ", at)
+        nul = tree.index(b"\0", space)
+        mode, name = tree[at:space].decode(), tree[space + 1:nul].decode("utf-8", "replace")
+        out.append((mode, name, tree[nul + 1:nul + 1 + size].hex()))
+        at = nul + 1 + size
+    return out
+
+
+def _walk(trees: dict[str, bytes], oid: str, prefix: str, size: int) -> dict[str, str]:
+    """path -> object id of every entry under the tree ``oid`` that ``git ls-tree -r`` lists
+    (files, symbolic links, sub-module commits), sub-folders walked."""
+    found: dict[str, str] = {}
+    for mode, name, child in _entries(trees.get(oid, b""), size):
+        if mode == "40000":
+            found.update(_walk(trees, child, f"{prefix}{name}/", size))
+        else:
+            found[f"{prefix}{name}"] = child
+    return found

@@ -59,6 +59,7 @@ def revision_snapshots(repo: Repo | None, rel: str, designs_root: str
         return None, Listing(rel, unavailable=reason), []
     current = snapshot(repo, None, rel, designs_root)
     listing = list_revisions(repo, rel, current.uses)
+    repo.prefetch_folder(designs_root, ".md")  # every design's revisions: a few git calls
     snaps = [snapshot(repo, r.commit.sha, r.path, designs_root) for r in listing.revisions]
     return current, listing, snaps
 
