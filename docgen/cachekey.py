@@ -128,17 +128,22 @@ def _field_names(kind: type) -> tuple[str, ...]:
     return names
 
 
+_SCALARS = (type(None), bool, int, float)
+
+
 def _plain(value: Any, self_path: str | None) -> Any:
     """Plain JSON data for a Design value: dataclasses by type and field, mappings sorted."""
-    if value is None or isinstance(value, (bool, int, float)):
+    kind = type(value)
+    if kind in _SCALARS:
         return value
-    if isinstance(value, str):
+    if kind is str:
         return _SELF if self_path is not None and value == self_path else value
-    if is_dataclass(value):
-        return [type(value).__name__, [_plain(getattr(value, f), self_path)
-                                       for f in _field_names(type(value))]]
+    names = _FIELDS.get(kind)
+    if names is not None or is_dataclass(value):
+        return [kind.__name__, [_plain(getattr(value, f), self_path)
+                                for f in names or _field_names(kind)]]
     if isinstance(value, Mapping):
         return [[str(k), _plain(v, self_path)] for k, v in sorted(value.items())]
     if isinstance(value, (tuple, list)):
         return [_plain(item, self_path) for item in value]
-    raise TypeError(f"cannot key a {type(value).__name__}")
+    raise TypeError(f"cannot key a {kind.__name__}")

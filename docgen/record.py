@@ -11,7 +11,7 @@ from __future__ import annotations
 import posixpath
 from collections.abc import Callable, Iterable, Iterator, Mapping
 from dataclasses import dataclass, field
-from functools import partial
+from functools import lru_cache, partial
 from importlib import resources
 from pathlib import Path
 
@@ -71,8 +71,10 @@ class Record:
         raise KeyError(path)
 
 
+@lru_cache(maxsize=1)
 def builtin_page() -> Design:
-    """docgen's own library page of generic models."""
+    """docgen's own library page of generic models (read once per process: a Design is
+    immutable, and the history reads a record at every revision)."""
     text = resources.files("docgen").joinpath("builtin/generic.md").read_text(encoding="utf-8")
     return read_text(text, BUILTIN)
 

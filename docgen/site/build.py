@@ -12,7 +12,6 @@ from __future__ import annotations
 import os
 import sys
 from collections.abc import Iterable
-from concurrent.futures import ProcessPoolExecutor
 from dataclasses import dataclass, field, replace
 from pathlib import Path
 from typing import Any
@@ -134,6 +133,7 @@ def _compute(view: RecordView, missing: list[str], jobs: int,
             yield rel, compute_bundle(design, view.models_for(design))  # type: ignore[arg-type]
         return
     import multiprocessing
+    from concurrent.futures import ProcessPoolExecutor  # only when something is to be solved
 
     context = multiprocessing.get_context("fork" if sys.platform.startswith("linux") else None)
     with ProcessPoolExecutor(max_workers=jobs, mp_context=context, initializer=init_worker,

@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import csv
 import io
+from functools import lru_cache
 from typing import Any
 
 from docgen import eseries
@@ -40,12 +41,19 @@ def preferred_flag(part: Part) -> dict[str, Any] | None:
     (that one or a coarser one; ``None`` if neither), and the nearest value of the first."""
     if part.kind not in STOCKED or not part.value or part.value <= 0:
         return None
-    series = series_for(part.tolerance)
-    unit = KINDS[part.kind].value_unit or ""
+    return dict(_flag(part.kind, part.value, part.tolerance))
+
+
+@lru_cache(maxsize=4096)
+def _flag(kind: str, value: float, tolerance: float | None) -> dict[str, Any]:
+    """:func:`preferred_flag` by value (pages and parts lists ask for the same parts on every
+    build; the series search is the slow part)."""
+    series = series_for(tolerance)
+    unit = KINDS[kind].value_unit or ""
     allowed = [series, *(s for s in COARSER if s != series and
                          len(eseries.SERIES[s]) < len(eseries.SERIES[series]))]
-    member = next((s for s in allowed if eseries.is_preferred(part.value, s)), None)
-    nearest = eseries.nearest(part.value, series)
+    member = next((s for s in allowed if eseries.is_preferred(value, s)), None)
+    nearest = eseries.nearest(value, series)
     return {"series": series, "member": member, "ok": member is not None,
             "nearest": format_eng(nearest, unit)}
 

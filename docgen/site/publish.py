@@ -17,7 +17,7 @@ from docgen.site.parts import parts_csv
 from docgen.site.paths import files_dir, page_path, root_prefix
 from docgen.site.providers import Contribution, ProviderInput, load_providers
 from docgen.site.record_view import RecordView
-from docgen.site.render import render
+from docgen.site.render import keep_compiled_templates, render
 
 SITE_NAME = "Design notebook"
 ASSETS = ("docgen.css", "favicon.svg", "filter.js", "live-reload.js")
@@ -74,6 +74,8 @@ def write_site(view: RecordView, in_site: list[str], bundles: dict[str, dict[str
                options: Any) -> tuple[int, list[Diagnostic]]:
     """Render and publish every page; return (files written, diagnostics from rendering)."""
     root = Path(options.designs_dir)
+    keep_compiled_templates(Path(options.cache_dir) / "templates" if options.cache_dir
+                            else None)
     pages = {rel: page_path(rel) for rel in in_site}
     site = SiteContext(pages, frozenset(view.entries), local_files(root), last_changes(root))
     site.titles = {rel: e.design.header.title for rel, e in view.entries.items()
