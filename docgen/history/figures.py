@@ -8,12 +8,11 @@ import functools
 import hashlib
 import json
 import math
-from collections.abc import Callable, Mapping, Sequence
+from collections.abc import Mapping, Sequence
 from importlib import metadata
 from typing import Any
 
 from docgen import __version__
-from docgen.history.cache import ResultsCache
 
 Json = dict[str, Any]
 
@@ -25,21 +24,14 @@ def _matplotlib_version() -> str:
     return metadata.version("matplotlib")
 
 
-def cached_figure(cache: ResultsCache, name: str, payload: Any, draw: Callable[[], str | None]
-                  ) -> str | None:
-    """The SVG ``draw()`` makes from ``payload``, drawn once: keyed by the payload, docgen's code
-    and matplotlib's version (so a rebuild after a commit does not even import matplotlib)."""
+def figure_key(name: str, payload: Any) -> str:
+    """The cache key of figure ``name`` drawn from ``payload``: the payload, docgen's code and
+    matplotlib's version."""
     from docgen.site.cache import code_fingerprint
 
     text = json.dumps([name, payload, __version__, code_fingerprint(), _matplotlib_version()],
                       sort_keys=True, default=str)
-    key = hashlib.sha256(text.encode("utf-8")).hexdigest()
-    svg = cache.figure(key)
-    if svg is None:
-        svg = draw()
-        if svg is not None:
-            cache.put_figure(key, svg)
-    return svg
+    return hashlib.sha256(text.encode("utf-8")).hexdigest()
 
 
 def trend_series(rows: Sequence[Json], limit: int = 6) -> list[tuple[str, str, list[float | None]]]:

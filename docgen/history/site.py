@@ -11,7 +11,7 @@ from __future__ import annotations
 from typing import Any
 
 from docgen.history.cache import ResultsCache
-from docgen.history.figures import cached_figure, response_overlay, trend_plot, trend_series
+from docgen.history.drawing import FigureJob, draw_missing, response_job, trend_job
 from docgen.history.pages import diff_context, diff_name, history_context
 from docgen.history.snapshot import RevisionSolver, content_key, open_repo
 from docgen.history.timeline import design_history, revision_snapshots
@@ -30,14 +30,31 @@ def provide(site: ProviderInput) -> Contribution:
     paths = {rel: rel if root in ("", ".") else f"{root.rstrip('/')}/{rel}" for rel in site.designs}
     _seed(site, solver)
     found = {rel: revision_snapshots(repo, paths[rel], root) for rel in site.designs}
+    # A first build: new revisions solved, then every figure not cached drawn, over the cores.
     solver.prefetch([s for rel in site.designs for s in found[rel][2]], site.jobs)
-    for rel in site.designs:  # (a first build solves new revisions in parallel, just above)
+    histories = {rel: design_history(repo, paths[rel], root, solver, found=found[rel])
+                 for rel in site.designs}
+    plans = {rel: figure_plan(histories[rel]) for rel in site.designs}
+    svgs = draw_missing(solver.cache, [j for p in plans.values() for j in p.values() if j],
+                        site.jobs)
+    for rel in site.designs:
         entry = site.record.entries[rel]
         title = entry.design.header.title if entry.design is not None else rel
-        history = design_history(repo, paths[rel], root, solver, found=found[rel])
+        history = histories[rel]
+        figures = {name: svgs[job.key] if job else None for name, job in plans[rel].items()}
         _design_pages(site, contribution, rel, title or rel, history,
-                      history["changed_since_approval"], solver.cache)
+                      history["changed_since_approval"], figures)
     return contribution
+
+
+def figure_plan(history: Json) -> dict[str, FigureJob | None]:
+    """The figures a design's history page (``"trend"``) and diff pages (``"response <i>"``)
+    show, as jobs to draw; ``None`` where a page has none."""
+    rows, results = history["rows"], history["results"]
+    plan = {"trend": trend_job(rows)}
+    for i in range(len(history["diffs"])):
+        plan[f"response {i}"] = response_job(rows, results, i)
+    return plan
 
 
 def _seed(site: ProviderInput, solver: RevisionSolver) -> None:
@@ -50,7 +67,7 @@ def _seed(site: ProviderInput, solver: RevisionSolver) -> None:
 
 
 def _design_pages(site: ProviderInput, out: Contribution, rel: str, title: str, history: Json,
-                  approval: Json | None, cache: ResultsCache) -> None:
+                  approval: Json | None, figures: dict[str, str | None]) -> None:
     page = site.pages[rel]
     folder = files_dir(page)
     history_path = f"{folder}/history.html"
@@ -58,11 +75,8 @@ def _design_pages(site: ProviderInput, out: Contribution, rel: str, title: str, 
     diff_paths = [f"{folder}/{diff_name(rows[i + 1]['sha'], rows[i]['sha'])}"
                   for i in range(len(history["diffs"]))]
     trend = None
-    series = trend_series(rows)
-    if len(rows) > 1 and series:
-        labels = [r["short"][:7] for r in reversed(rows)]
-        out.files[f"{folder}/history-trends.svg"] = cached_figure(
-            cache, "trend", [labels, series], lambda: trend_plot(labels, series))
+    if figures["trend"] is not None:
+        out.files[f"{folder}/history-trends.svg"] = figures["trend"]
         trend = "history-trends.svg"
     context = history_context(
         history, title=title, design_href=relative_url(history_path, page),
@@ -71,7 +85,8 @@ def _design_pages(site: ProviderInput, out: Contribution, rel: str, title: str, 
     out.files[history_path] = site.render("history.html", history_path, f"History of {title}",
                                           page=context)
     for i, diff in enumerate(history["diffs"]):
-        _diff_page(site, out, i, diff, history, diff_paths, title, page, history_path, cache)
+        _diff_page(site, out, i, diff, history, diff_paths, title, page, history_path,
+                   figures[f"response {i}"])
     count = len(rows)
     text = f"{count} revision{'s' if count != 1 else ''}" if history["available"] \
         else "not available"
@@ -85,15 +100,10 @@ def _design_pages(site: ProviderInput, out: Contribution, rel: str, title: str, 
 
 def _diff_page(site: ProviderInput, out: Contribution, i: int, diff: Json, history: Json,
                diff_paths: list[str], title: str, page: str, history_path: str,
-               cache: ResultsCache) -> None:
-    rows, results = history["rows"], history["results"]
+               svg: str | None) -> None:
+    rows = history["rows"]
     path = diff_paths[i]
     overlay = None
-    old_ac, new_ac = results[i + 1].get("ac"), results[i].get("ac")
-    labels = (rows[i + 1]["short"][:7], rows[i]["short"][:7])
-    svg = cached_figure(cache, "response", [rows[i + 1]["key"], rows[i]["key"], labels],
-                        lambda: response_overlay(old_ac, new_ac, labels)) \
-        if old_ac and new_ac else None
     if svg is not None:
         figure = path[: -len(".html")] + "-response.svg"
         out.files[figure] = svg

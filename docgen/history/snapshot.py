@@ -234,13 +234,15 @@ class RevisionSolver:
             for snap in todo.values():
                 self.results(snap)
             return
-        from concurrent.futures import ProcessPoolExecutor
+        from docgen.history.workers import worker_pool
 
-        with ProcessPoolExecutor(max_workers=min(jobs, len(todo))) as pool:
-            futures = {key: pool.submit(solve_texts, snap.path, snap.source, snap.library_texts)
-                       for key, snap in sorted(todo.items())}
-            for key, future in futures.items():
-                results, trustworthy = future.result()
+        keys = sorted(todo)
+        work = [(todo[k].path, todo[k].source, todo[k].library_texts) for k in keys]
+        with worker_pool(jobs, len(todo), _preload_pipeline) as pool:
+            assert pool is not None
+            # a few revisions per round trip: each solve is tens of milliseconds
+            solved = pool.map(_solve_texts, work, chunksize=max(1, min(8, len(work) // (4 * jobs))))
+            for key, (results, trustworthy) in zip(keys, solved, strict=True):
                 self.solved += 1
                 if trustworthy:
                     self.cache.put(key, results)
@@ -279,6 +281,24 @@ def history_sections(design: Design) -> frozenset[str]:
 
 
 HEADLINE_SECTIONS = frozenset({"op", "ac", "noise"})
+
+
+def _preload_pipeline() -> None:
+    """Import the reader and the analyses once in the parent rather than once in every
+    worker."""
+    import contextlib
+    import importlib
+
+    from docgen.pipeline import ANALYSES
+
+    for module in ("docgen.record", "docgen.elaborate", *(t.split(":")[0] for _, t in ANALYSES)):
+        with contextlib.suppress(ModuleNotFoundError):
+            importlib.import_module(module)
+
+
+def _solve_texts(work: tuple[str, str, tuple[tuple[str, str], ...]]
+                 ) -> tuple[dict[str, Any], bool]:
+    return solve_texts(*work)
 
 
 def solve_texts(path: str, source: str, library_texts: tuple[tuple[str, str], ...]
