@@ -68,12 +68,16 @@ def freeze_code(folder: Path) -> None:
     """Copy the docgen package as it is now into ``folder`` and run every later command with
     it.  Others edit the shared working tree while a long run goes on, and the site cache's key
     covers docgen's own files: without a frozen copy, a "no-change" rebuild would solve again."""
+    import compileall
     import shutil
 
     import docgen
 
     source = Path(docgen.__file__).resolve().parent
     shutil.copytree(source, folder / "docgen", ignore=shutil.ignore_patterns("__pycache__"))
+    # compiled as an installed package is (pip compiles on install); without it, a shell with
+    # PYTHONDONTWRITEBYTECODE set would compile docgen's modules in every timed process
+    compileall.compile_dir(folder / "docgen", quiet=1)
     FROZEN["PYTHONPATH"] = str(folder)
 
 
