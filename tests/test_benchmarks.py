@@ -63,3 +63,23 @@ def test_script_options() -> None:
     assert quick.only == ["spread", "check"]
     full = run.parse([])
     assert (full.repeats, full.designs, full.revisions) == (5, 200, 10)
+
+
+def test_the_value_edit_moves_one_resistor_to_its_e24_neighbour_and_back(tmp_path: Path) -> None:
+    """The site rows' second one-design edit: one value changes, to the next E24 value (IEC
+    60063's E24 runs 10, 11, 12, ...), and back on the next round."""
+    import run
+
+    from docgen.reader import read_text
+
+    designs = tmp_path / "designs"
+    designs.mkdir()
+    page = designs / "divider.md"
+    page.write_text((Path(__file__).parent / "fixtures" / "site" / "divider.md").read_text())
+    before = read_text(page.read_text(), str(page))
+    assert run._nudge_one(designs, 0) == "R1 10k -> 11k"
+    after = read_text(page.read_text(), str(page))
+    assert [(a.name, a.value, b.value) for a, b in zip(before.parts, after.parts, strict=True)
+            if a.value != b.value] == [("R1", 10e3, 11e3)]
+    run._nudge_one(designs, 1)
+    assert read_text(page.read_text(), str(page)).parts == before.parts
