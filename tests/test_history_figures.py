@@ -31,3 +31,43 @@ def test_figures_are_deterministic_svg():
     assert overlay is not None and overlay == response_overlay(other, ac, ("old", "new"))
     assert "old" in overlay and "new" in overlay
     assert response_overlay(None, ac, ("old", "new")) is None
+
+
+def test_overlay_redrawn_on_one_canvas_equals_a_fresh_figure():
+    """The overlay reuses one figure per process; each SVG must be byte for byte what a fresh
+    ``plots.curves`` figure gives, whatever was drawn before it (wider and narrower ranges, a
+    different sweep whose older curve is blank at the ends)."""
+    import math
+
+    from docgen import plots
+
+    wide = [10.0 ** (k / 4) for k in range(33)]  # 1 Hz .. 100 MHz
+    narrow = [10.0 ** (1 + k / 8) for k in range(25)]  # 10 Hz .. 10 kHz
+    cases = [
+        ({"freq_hz": wide, "gain_db": [20 - k for k in range(33)]},
+         {"freq_hz": wide, "gain_db": [21 - k for k in range(33)]}),
+        ({"freq_hz": narrow, "gain_db": [0.5 * k for k in range(25)]},
+         {"freq_hz": wide, "gain_db": [-40 + 3 * k for k in range(33)]}),
+        ({"freq_hz": wide, "gain_db": [1.0] * 33}, {"freq_hz": wide, "gain_db": [1.5] * 33}),
+        ({"freq_hz": narrow, "gain_db": [60 - k for k in range(25)]},
+         {"freq_hz": narrow, "gain_db": [58 - k for k in range(25)]}),
+    ]
+    for index, (old, new) in enumerate(cases + cases[:1]):
+        labels = (f"old{index}", f"new{index}")
+        before = old["gain_db"] if old["freq_hz"] == new["freq_hz"] else [
+            _interp(f, old) for f in new["freq_hz"]]
+        fresh = plots.curves(new["freq_hz"], [(labels[0], before), (labels[1], new["gain_db"])],
+                             unit="dB", ylabel="gain (dB)", log_y=False)
+        assert response_overlay(old, new, labels) == fresh, index
+    assert math.isnan(_interp(1.0, cases[1][0]))
+
+
+def _interp(freq, ac):
+    """Gain of ``ac`` at ``freq`` on a log-frequency line, NaN outside its sweep (numpy.interp
+    as the reference for the overlay's own interpolation)."""
+    import math
+
+    import numpy as np
+
+    return float(np.interp(math.log10(freq), np.log10(ac["freq_hz"]), ac["gain_db"],
+                           left=math.nan, right=math.nan))

@@ -90,7 +90,6 @@ def response_overlay(old_ac: Mapping[str, Any] | None, new_ac: Mapping[str, Any]
         return None
     import numpy as np
 
-    from docgen import plots
 
     freq = np.asarray(new_ac["freq_hz"], dtype=float)
     old_f = np.asarray(old_ac["freq_hz"], dtype=float)
@@ -100,8 +99,50 @@ def response_overlay(old_ac: Mapping[str, Any] | None, new_ac: Mapping[str, Any]
     else:
         before = np.interp(np.log10(freq), np.log10(old_f), old_gain, left=math.nan,
                            right=math.nan)
-    return plots.curves(freq, [(labels[0], before), (labels[1], new_ac["gain_db"])],
-                        unit="dB", ylabel="gain (dB)", log_y=False)
+    return _overlay_canvas().draw(freq, [(labels[0], before), (labels[1], new_ac["gain_db"])])
+
+
+class _Canvas:
+    """The overlay figure, made once per process and redrawn for each pair of revisions.
+
+    Building a figure's axes and tick objects is about half the cost of drawing an overlay,
+    and a history has one overlay per diff page.  Removing the curves and the legend and
+    re-limiting the axes gives the same SVG bytes as a fresh ``plots.curves(..., unit="dB",
+    ylabel="gain (dB)", log_y=False)`` figure; tests/test_history_figures.py compares the two.
+    """
+
+    def __init__(self) -> None:
+        from docgen import plots
+
+        self.plots = plots
+        self.figure, (self.axes,) = plots._figure(1)
+        plots._log_x(self.axes, "Hz")
+        self.axes.yaxis.set_major_formatter(plots._eng("dB"))
+        self.axes.set_ylabel("gain (dB)")
+        self.axes.set_xlabel("frequency")
+
+    def draw(self, freq: Any, series: Sequence[tuple[str, Any]]) -> str:
+        """The SVG of ``series`` (name, gain in dB) against ``freq`` (Hz)."""
+        import io
+
+        ax, colours = self.axes, self.plots.CURVE_COLOURS
+        for line in list(ax.lines):
+            line.remove()
+        if ax.get_legend() is not None:
+            ax.get_legend().remove()
+        for index, (name, values) in enumerate(series):
+            ax.plot(freq, values, color=colours[index % len(colours)], label=name)
+        ax.relim()
+        ax.autoscale_view()
+        ax.legend(loc="best", fontsize=7.5, frameon=False)
+        buffer = io.StringIO()
+        self.figure.savefig(buffer, format="svg", metadata={"Date": None, "Creator": "docgen"})
+        return buffer.getvalue()
+
+
+@functools.cache
+def _overlay_canvas() -> _Canvas:
+    return _Canvas()
 
 
 def _has_curve(ac: Mapping[str, Any] | None) -> bool:
