@@ -61,3 +61,37 @@ def test_random_circuits_solve_honestly(text):
         assert abs(sum(flows)) <= 1e-6 * max(1e-3, max(abs(f) for f in flows))
     section = op_section(solution)
     assert all(value is None or np.isfinite(value) for value in section["nets"].values())
+
+
+@settings(max_examples=30, deadline=None)
+@given(random_circuits(), st.integers(0, 2**32 - 1))
+def test_assembled_matrix_is_the_jacobian_of_the_equations(text, seed):
+    # The solver stamps all devices of one kind with one evaluation and adds them through a
+    # scatter matrix (small batches) or entry by entry (large ones).  Either way, at any x the
+    # assembled system must be the Newton linearisation of the circuit equations F:
+    # A(x) = ∂F/∂x, checked against central finite differences (numerical analysis), with
+    # F(x) = A(x)·x − b(x); and the two ways of adding stamps must agree.
+    try:
+        circuit = make_circuit(text)
+    except DocgenError:
+        return
+    from docgen.solve import mna
+    from docgen.solve.junctions import SMALL_BATCH
+
+    problem = mna.build_problem(circuit)
+    size = problem.layout.size
+    x = np.random.default_rng(seed).uniform(-0.8, 0.8, size)
+
+    def residual(at: np.ndarray) -> np.ndarray:
+        matrix, rhs, _, _ = mna.assemble(problem, at[None, :], {}, limiting=False)
+        return matrix[0] @ at - rhs[0]
+
+    matrix = mna.assemble(problem, x[None, :], {}, limiting=False)[0][0]
+    step = 1e-6
+    numeric = np.column_stack([(residual(x + step * e) - residual(x - step * e)) / (2 * step)
+                               for e in np.eye(size)])
+    assert np.allclose(matrix, numeric, rtol=1e-4, atol=1e-6 * max(1.0, np.abs(matrix).max()))
+    large = problem.subset(np.zeros(SMALL_BATCH + 1, dtype=int))
+    batch = mna.assemble(large, np.repeat(x[None, :], SMALL_BATCH + 1, axis=0), {},
+                         limiting=False)
+    assert np.allclose(batch[0], matrix, rtol=1e-12, atol=0)

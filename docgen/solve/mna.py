@@ -28,28 +28,17 @@ for an op-amp it is the current out of the output pin.
 from __future__ import annotations
 
 from collections.abc import Callable, Mapping
-from dataclasses import dataclass
+from dataclasses import dataclass, field
+from functools import lru_cache
 from typing import Any
 
 import numpy as np
 
 from docgen.elaborate import Circuit, Device
 from docgen.kinds import GROUND
-from docgen.solve import devices as physics
-from docgen.solve.companions import (  # noqa: F401 - re-exported for the analyses
-    BIPOLAR_PROJECTION,
-    DIODE_PROJECTION,
-    FET_PROJECTION,
-    POLARITY,
-    Evaluate,
-    Limit,
-    bipolar_model,
-    diode_model,
-    fet_model,
-    fet_threshold,
-    limit_opamp,
-    opamp_residual,
-)
+from docgen.solve.companions import limit_opamp, opamp_residual
+from docgen.solve.junctions import KINDS as JUNCTION_KINDS
+from docgen.solve.junctions import SMALL_BATCH, group_of, junction_groups, positions
 from docgen.solve.physical import ZERO_CELSIUS
 
 Array = np.ndarray
@@ -88,6 +77,15 @@ class Problem:
     values: Mapping[str, Mapping[str, Array]]
     temperature_c: Array
     samples: int
+    #: what depends only on the values and is reused by every Newton iteration (device model
+    #: constants, the linear parts' matrix); never copied by ``replace`` or ``subset``
+    memo: dict[Any, Any] = field(default_factory=dict, init=False, compare=False, repr=False)
+
+    def remember(self, key: Any, make: Callable[[], Any]) -> Any:
+        """``make()`` once per problem and key (the values must not change in place after)."""
+        if key not in self.memo:
+            self.memo[key] = make()
+        return self.memo[key]
 
     @property
     def temperature_k(self) -> Array:
@@ -177,13 +175,28 @@ class _System:
     def add(self, idx: tuple[int, ...], jacobian: Array, constant: Array) -> None:
         """Add ``jacobian·x_local + constant`` to the rows ``idx`` (moves ``constant`` right).
 
-        One strided column add per matrix entry, over the whole batch: faster than fancy
-        indexing for these small stamps, and repeated rows (two terminals on one net) add up.
+        A small batch with distinct rows: one indexed add for the whole stamp (per numpy call
+        is the cost there).  Otherwise one strided add per entry, which also sums repeated rows
+        (two terminals on one net) and is the faster way over a large batch.
         """
+        rows, cols, distinct = _scatter(idx)
+        if distinct and self.matrix.shape[0] <= SMALL_BATCH:
+            count = len(idx)
+            self.matrix[:, rows, cols] += np.broadcast_to(
+                jacobian, (self.matrix.shape[0], count, count)).reshape(-1, count * count)
+            self.rhs[:, list(idx)] -= constant
+            return
         for i, row in enumerate(idx):
             for j, col in enumerate(idx):
                 self.matrix[:, row, col] += jacobian[..., i, j]
             self.rhs[:, row] -= constant[..., i]
+
+
+@lru_cache(maxsize=4096)
+def _scatter(idx: tuple[int, ...]) -> tuple[Array, Array, bool]:
+    """Row and column indices of every entry of a stamp on ``idx``, and whether they differ."""
+    array = np.asarray(idx, dtype=np.intp)
+    return np.repeat(array, len(idx)), np.tile(array, len(idx)), len(set(idx)) == len(idx)
 
 
 def _resistance_at(values: Mapping[str, Array], temperature_c: Array) -> Array:
@@ -235,22 +248,6 @@ def _stamp_series(ctx: _StampContext, outer: int, inner: int, resistance: Array)
     ctx.add((outer, inner), _conductance_stamp(g), np.zeros((ctx.samples, 2)))
 
 
-def _companion(ctx: _StampContext, positions: tuple[int, ...], projection: Array,
-               polarity: float, evaluate: Evaluate, limit: Limit | None) -> None:
-    """Stamp a device whose normalised currents f(u) depend on controls u = p·P·v."""
-    v = ctx.x_full[:, [ctx.idx[p] for p in positions]]
-    u_new = polarity * v @ projection.T
-    u_old = ctx.state.get(ctx.device.name, u_new)  # first iteration: trust the start point
-    use_limit = limit is not None and ctx.limiting
-    u = limit(u_new, u_old) if use_limit else u_new  # type: ignore[misc]
-    ctx.new_state[ctx.device.name] = u
-    ctx.limited |= np.any(np.abs(u - u_new) > 1e-12, axis=-1)
-    current, d_du = evaluate(u)
-    jac = d_du @ projection
-    constant = polarity * (current - np.einsum("stc,sc->st", d_du, u))
-    ctx.add(positions, jac, constant)
-
-
 @dataclass
 class _StampContext:
     problem: Problem
@@ -281,32 +278,27 @@ class _StampContext:
 # ---------------------------------------------------------------- junction devices
 
 
-def _stamp_diode(ctx: _StampContext) -> None:
-    evaluate, limit = diode_model(ctx.values, ctx.problem.temperature_k)
-    positions: tuple[int, ...] = (0, 1)
-    if len(ctx.idx) == 3:  # series resistance: anode — internal node — junction — cathode
-        _stamp_series(ctx, 0, 2, ctx.values["series_resistance"])
-        positions = (2, 1)
-    _companion(ctx, positions, DIODE_PROJECTION, 1.0, evaluate, limit)
+def _stamp_junction(ctx: _StampContext) -> None:
+    """A diode or transistor alone (its group of one): its Newton companion."""
+    companion = group_of(ctx.problem, ctx.device.name).linearise(ctx.x_full, ctx.state,
+                                                                 ctx.limiting)
+    ctx.new_state.update(companion.state)
+    ctx.limited |= companion.limited
+    ctx.add(positions(ctx.device.kind, len(ctx.idx)), companion.jac[:, 0],
+            companion.constant[:, 0])
 
 
-def _stamp_bipolar(ctx: _StampContext) -> None:
-    evaluate, limit = bipolar_model(ctx.values, ctx.problem.temperature_k)
-    positions: tuple[int, ...] = (0, 1, 2)
-    if len(ctx.idx) == 4:  # base resistance: outer base — inner base
-        _stamp_series(ctx, 1, 3, ctx.values["base_resistance"])
-        positions = (0, 3, 2)
-    _companion(ctx, positions, BIPOLAR_PROJECTION, POLARITY[ctx.device.kind], evaluate, limit)
+#: the linear series resistance inside a junction device: (outer, inner) local positions and
+#: the value's name; stamped with the linear parts, not every Newton iteration
+SERIES = {"diode": ((0, 2), "series_resistance"), "npn": ((1, 3), "base_resistance"),
+          "pnp": ((1, 3), "base_resistance")}
 
 
-def _stamp_fet(ctx: _StampContext) -> None:
-    evaluate = fet_model(ctx.device.kind, ctx.values)
-    threshold = fet_threshold(ctx.device.kind, ctx.values)[:, None]
-
-    def limit(u_new: Array, u_old: Array) -> Array:
-        return physics.limit_channel(u_new, u_old, threshold[:, 0])
-
-    _companion(ctx, (0, 1, 2), FET_PROJECTION, POLARITY[ctx.device.kind], evaluate, limit)
+def _stamp_inner_series(ctx: _StampContext) -> None:
+    """The series (diode) or base (bipolar) resistance to the device's internal node."""
+    (outer, inner), name = SERIES[ctx.device.kind]
+    if len(ctx.idx) > inner:
+        _stamp_series(ctx, outer, inner, ctx.values[name])
 
 
 # ------------------------------------------------------------------------- op-amp
@@ -333,13 +325,13 @@ STAMPS: dict[str, Callable[[_StampContext], None]] = {
     "supply": _stamp_branch,
     "signal": _stamp_branch,
     "inductor": _stamp_branch,
-    "diode": _stamp_diode,
-    "npn": _stamp_bipolar,
-    "pnp": _stamp_bipolar,
-    "njfet": _stamp_fet,
-    "pjfet": _stamp_fet,
-    "nmos": _stamp_fet,
-    "pmos": _stamp_fet,
+    "diode": _stamp_junction,
+    "npn": _stamp_junction,
+    "pnp": _stamp_junction,
+    "njfet": _stamp_junction,
+    "pjfet": _stamp_junction,
+    "nmos": _stamp_junction,
+    "pmos": _stamp_junction,
     "opamp": _stamp_opamp,
 }
 
@@ -353,7 +345,8 @@ LINEAR_KINDS = frozenset({"resistor", "capacitor", "current", "supply", "signal"
 
 
 def _stamp_all(problem: Problem, devices: list[Device], system: _System, x: Array,
-               state: Mapping[str, Array], source_scale: Array | float, limiting: bool
+               state: Mapping[str, Array], source_scale: Array | float, limiting: bool,
+               stamps: Mapping[str, Callable[[_StampContext], None]] = STAMPS
                ) -> tuple[dict[str, Array], Array]:
     samples = problem.samples
     scale = np.broadcast_to(np.asarray(source_scale, dtype=float), (samples,))
@@ -364,8 +357,15 @@ def _stamp_all(problem: Problem, devices: list[Device], system: _System, x: Arra
         ctx = _StampContext(problem, device, problem.values[device.name],
                             problem.layout.local[device.name], x_full, state, new_state,
                             limited, system, scale, limiting)
-        STAMPS[device.kind](ctx)
+        stamps[device.kind](ctx)
     return new_state, limited
+
+
+def _stamp_whole(ctx: _StampContext) -> None:
+    """Every equation of one device: its linear series resistance too (for the currents)."""
+    if ctx.device.kind in SERIES:
+        _stamp_inner_series(ctx)
+    STAMPS[ctx.device.kind](ctx)
 
 
 def assemble_linear(problem: Problem, source_scale: Array | float = 1.0,
@@ -373,12 +373,32 @@ def assemble_linear(problem: Problem, source_scale: Array | float = 1.0,
     """The padded matrix and right-hand side of the linear parts alone (plus node gmin).
 
     They do not change between Newton iterations, so the solver builds them once per attempt
-    and passes them to :func:`assemble` as ``linear``.
+    and passes them to :func:`assemble` as ``linear``; for a scalar scale and gmin they are
+    made once per problem (read-only arrays: :func:`assemble` copies them).
     """
+    if np.ndim(source_scale) == 0 and np.ndim(node_gmin) == 0:
+        key = ("linear", float(source_scale), float(node_gmin))
+        return problem.remember(key, lambda: _read_only(
+            _assemble_linear(problem, float(source_scale), float(node_gmin))))
+    return _assemble_linear(problem, source_scale, node_gmin)
+
+
+def _read_only(arrays: tuple[Array, Array]) -> tuple[Array, Array]:
+    for array in arrays:
+        array.setflags(write=False)
+    return arrays
+
+
+def _assemble_linear(problem: Problem, source_scale: Array | float,
+                     node_gmin: Array | float) -> tuple[Array, Array]:
     samples, size = problem.samples, problem.layout.size
     system = _System(samples, size)
     linear = [d for d in problem.circuit.devices if d.kind in LINEAR_KINDS]
-    _stamp_all(problem, linear, system, np.zeros((samples, size)), {}, source_scale, True)
+    zeros = np.zeros((samples, size))
+    _stamp_all(problem, linear, system, zeros, {}, source_scale, True)
+    inner = [d for d in problem.circuit.devices if d.kind in SERIES]
+    _stamp_all(problem, inner, system, zeros, {}, source_scale, True,
+               dict.fromkeys(SERIES, _stamp_inner_series))
     nodes = np.arange(problem.layout.node_count)
     gmin = np.broadcast_to(np.asarray(node_gmin, dtype=float), (samples,))
     system.matrix[:, nodes, nodes] += gmin[:, None]
@@ -411,9 +431,15 @@ def assemble(
     base = linear if linear is not None else assemble_linear(problem, source_scale, node_gmin)
     system = _System(problem.samples, size)
     system.matrix, system.rhs = base[0].copy(), base[1].copy()
-    nonlinear = [d for d in problem.circuit.devices if d.kind not in LINEAR_KINDS]
-    new_state, limited = _stamp_all(problem, nonlinear, system, x, state, source_scale,
-                                    limiting)
+    others = [d for d in problem.circuit.devices
+              if d.kind not in LINEAR_KINDS and d.kind not in JUNCTION_KINDS]
+    new_state, limited = _stamp_all(problem, others, system, x, state, source_scale, limiting)
+    x_full = pad(x)
+    for group in junction_groups(problem):  # every device of a kind in one evaluation
+        companion = group.linearise(x_full, state, limiting)
+        companion.scatter(system.matrix, system.rhs)
+        new_state.update(companion.state)
+        limited |= companion.limited
     return system.matrix[:, :size, :size], system.rhs[:, :size], new_state, limited
 
 
@@ -434,6 +460,6 @@ def device_currents(problem: Problem, x: Array) -> dict[str, Array]:
         ctx = _StampContext(problem, device, problem.values[device.name], idx, x_full, {}, {},
                             np.zeros(samples, dtype=bool), system, scale, limiting=False,
                             record=record)
-        STAMPS[device.kind](ctx)
+        _stamp_whole(ctx)
         out[device.name] = record[:, :len(device.terminals)]
     return out

@@ -149,7 +149,7 @@ def newton(
     unsettled = np.full(samples, -1)
     singular = np.zeros(samples, dtype=bool)
     node_count = problem.layout.node_count
-    span = voltage_span(problem)
+    span = problem.remember("span", lambda: voltage_span(problem))
     linear = assemble_linear(problem, source_scale, node_gmin)
     absolute = np.where(np.arange(problem.layout.size) < node_count,
                         options.voltage_tolerance, options.current_tolerance)
@@ -174,7 +174,7 @@ def newton(
         x = np.where(active[:, None], x_new, x)
         for name, value in new_state.items():
             old = state.get(name, value)
-            state[name] = np.where(active[:, None], value, old)
+            state[name] = np.where(active.reshape((-1,) + (1,) * (value.ndim - 1)), value, old)
         done |= settled & active
         if done.all():
             break

@@ -34,7 +34,7 @@ import numpy as np
 from docgen.diagnostics import AnalysisError
 from docgen.elaborate import Circuit, Device
 from docgen.kinds import GROUND
-from docgen.solve import mna
+from docgen.solve import companions, mna
 from docgen.solve.newton import METHODS, DcResult, SolveOptions, solve_dc
 from docgen.solve.topology import check_dc_topology
 
@@ -222,12 +222,12 @@ def _power(sol: OpSolution, d: Device) -> Array:
 
 
 def _bipolar(sol: OpSolution, d: Device) -> dict[str, Array]:
-    p = mna.POLARITY[d.kind]
+    p = companions.POLARITY[d.kind]
     v, i = sol.terminal_voltages(d), sol.currents[d.name]
-    evaluate, _ = mna.bipolar_model(sol.problem.values[d.name], sol.problem.temperature_k)
+    evaluate, _ = companions.bipolar_model(sol.problem.values[d.name], sol.problem.temperature_k)
     local = sol.local(d)
     inner = local[:, [0, 3, 2]] if local.shape[1] == 4 else local[:, :3]
-    _, d_du = evaluate(p * inner @ mna.BIPOLAR_PROJECTION.T)
+    _, d_du = evaluate(p * inner @ companions.BIPOLAR_PROJECTION.T)
     gm = d_du[:, 0, 0] + d_du[:, 0, 1]  # ∂iC/∂vBE at constant vCE
     g_pi = d_du[:, 1, 0] + d_du[:, 1, 1]
     g_out = -d_du[:, 0, 1]
@@ -244,11 +244,11 @@ def _bipolar(sol: OpSolution, d: Device) -> dict[str, Array]:
 
 
 def _fet(sol: OpSolution, d: Device) -> dict[str, Array]:
-    p = mna.POLARITY[d.kind]
+    p = companions.POLARITY[d.kind]
     v, i = sol.terminal_voltages(d), sol.currents[d.name]
     values = sol.problem.values[d.name]
-    u = p * v @ mna.FET_PROJECTION.T
-    _, d_du = mna.fet_model(d.kind, values)(u)
+    u = p * v @ companions.FET_PROJECTION.T
+    _, d_du = companions.fet_model(d.kind, values)(u)
     if d.kind in ("njfet", "pjfet"):
         threshold = -values["pinch_off_voltage"]
     else:
