@@ -12,7 +12,8 @@ control needs), so the last period is sampled uniformly and coherently for the F
 state is declared per sample when no net moved more than :data:`STEADY_CHANGE` of the largest
 peak-to-peak of any net between one period and the next (measured, never assumed); the run
 stops when every sample is steady (after at least :data:`MIN_PERIODS`) or after
-:data:`MAX_PERIODS`, and says which.
+:data:`MAX_PERIODS`, and says which; a caller may mark samples whose answer is already decided
+(``decided``) so the run need not wait for them.
 
 Integration rule: trapezoidal; if its tell-tale ringing (energy at the grid's Nyquist rate,
 alternating from point to point) appears in a period, the run switches to BDF2 (Gear) and
@@ -22,6 +23,7 @@ measures steady state afresh.
 from __future__ import annotations
 
 import math
+from collections.abc import Callable
 from dataclasses import dataclass
 
 import numpy as np
@@ -30,6 +32,7 @@ from docgen.solve.integrate import METHODS, Stepper, run_grid
 from docgen.solve.linearise import SmallSignal
 
 Array = np.ndarray
+Decided = Callable[[Array, Array], Array]
 
 POINTS = 128
 MIN_PERIODS = 2
@@ -77,10 +80,15 @@ def _alternating(grid: Array, nets: int) -> Array:
 
 def steady_state(network: SmallSignal, amplitudes: Array, frequency: float,
                  points: int = POINTS, max_periods: int = MAX_PERIODS,
-                 method: str = "trapezoidal", relative_tolerance: float = 1e-4) -> PeriodicRun:
+                 method: str = "trapezoidal", relative_tolerance: float = 1e-4,
+                 decided: Decided | None = None) -> PeriodicRun:
     """March the circuit with a sine of each amplitude until the waveform repeats.
 
     :param relative_tolerance: the local error allowed per step, as a share of the supply span.
+    :param decided: ``(last period, period before) -> (S,)`` true for samples whose answer is
+        already known although they are still moving (a search that only asks "above or
+        below a limit"); the run then stops when every other sample is steady.  ``reached``
+        still tells which samples really were.
     """
     amplitudes = np.asarray(amplitudes, dtype=float)
     omega = 2.0 * math.pi * frequency
@@ -109,7 +117,8 @@ def steady_state(network: SmallSignal, amplitudes: Array, frequency: float,
             moved = np.max(np.abs(grid[:, :, :nets] - previous[:, :, :nets]), axis=(0, 2))
             change = moved / np.maximum(spread, 1e-9)
             reached = change <= STEADY_CHANGE
-            if count >= MIN_PERIODS and reached.all():
+            known = reached if decided is None else reached | decided(grid, previous)
+            if count >= MIN_PERIODS and known.all():
                 break
         previous = grid
     return PeriodicRun(network, grid, frequency, amplitudes, reached, change, count, stepper.method,

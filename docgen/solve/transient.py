@@ -9,14 +9,18 @@ Public API::
 How (each step reuses the one set of device equations, see :mod:`docgen.solve.integrate`):
 
 1. One batched run (:func:`docgen.solve.periodic.steady_state`) drives the bench amplitude,
-   the bench ``amplitudes`` list, the amplitudes of ``THD at …`` requirements and, when the
-   swing is wanted, a ladder of amplitudes from 1/300 of to the full supply span over the
-   small-signal gain: every amplitude is one sample of the same time march.
+   the bench ``amplitudes`` list and the amplitudes of ``THD at …`` requirements: every
+   amplitude is one sample of the same time march.
 2. THD of each from the FFT of its last period (:mod:`docgen.solve.distortion`).
-3. The swing search: the ladder brackets the amplitude where THD crosses the bench distortion
-   limit; one more batched run of three amplitudes inside the bracket narrows it, and the
-   amplitude and the output's peak-to-peak are interpolated (log THD against log amplitude)
-   between the two samples either side.
+3. The swing search, when a requirement reads it: a second batched run (coarser grid, looser
+   step error) of a ladder of amplitudes from 1/300 of to the full supply span over the
+   small-signal gain brackets the amplitude where THD crosses the bench distortion limit; one
+   more batched run of three amplitudes inside the bracket narrows it, and the amplitude and
+   the output's peak-to-peak are interpolated (log THD against log amplitude) between the two
+   samples either side.  These runs do not wait for a sample that was over three times the
+   limit two periods running (its answer is known; ``swing_steady`` says whether every sample
+   settled), except the deepest ladder sample: the headroom and the overdrive clipping come
+   from its waveform.
 4. Clipping: over the last period, where a transistor leaves its bias region (or its current
    falls below 5 % of its bias value: cut-off), an op-amp's output stage reaches its limit,
    or the output comes within 1 % of the supply span of a rail.
@@ -25,6 +29,7 @@ How (each step reuses the one set of device equations, see :mod:`docgen.solve.in
 from __future__ import annotations
 
 import math
+from collections.abc import Callable
 from typing import Any
 
 import numpy as np
@@ -48,6 +53,9 @@ REFINE = 3
 #: the swing search needs THD near the limit to a few per cent of itself, not the bench run's
 #: precision: a coarser grid, a looser step error and fewer periods keep it affordable
 SWING_SETTINGS = {"points": 64, "max_periods": 6, "relative_tolerance": 3e-3}
+#: a ladder sample this many times over the distortion limit in two periods running is above
+#: it, whatever its remaining drift
+FAR_ABOVE = 3.0
 RAIL_MARGIN = 0.01
 CUT_OFF_SHARE = 0.05
 NORMAL_REGION = {"npn": "active", "pnp": "active", "njfet": "saturation", "pjfet": "saturation",
@@ -184,7 +192,8 @@ def _swing(ctx: Any, network: SmallSignal, frequency: float, ladder: Array, outp
     if ladder.size == 0:
         return {**empty, "swing_reason": "not searched (no requirement reads it, or the "
                 "small-signal gain is unknown)"}
-    run = _run(ctx, network, ladder, frequency, **SWING_SETTINGS)
+    decided = _far_above(network, output_net, limit)
+    run = _run(ctx, network, ladder, frequency, decided=_except_last(decided), **SWING_SETTINGS)
     output = _net_wave(run, output_net)
     amplitudes, levels, swings = ladder, thd(output.T), np.ptp(output, axis=0)
     quiescent = float(network.solution.voltage(output_net)[0])
@@ -203,7 +212,7 @@ def _swing(ctx: Any, network: SmallSignal, frequency: float, ladder: Array, outp
                 f"{ladder[0]:.3g} V"}
     k = int(above[0])
     inner = np.geomspace(amplitudes[k - 1], amplitudes[k], REFINE + 2)[1:-1]
-    refine = _run(ctx, network, inner, frequency, **SWING_SETTINGS)
+    refine = _run(ctx, network, inner, frequency, decided=decided, **SWING_SETTINGS)
     inner_out = _net_wave(refine, output_net)
     found["swing_steady"] = found["swing_steady"] and bool(refine.reached.all())
     amplitudes = np.concatenate([amplitudes[k - 1:k], inner, amplitudes[k:k + 1]])
@@ -214,6 +223,33 @@ def _swing(ctx: Any, network: SmallSignal, frequency: float, ladder: Array, outp
                                     swings[j - 1:j + 1], limit)
     return {**empty, **found, "max_swing_vpp": swing, "swing_limit_amplitude_v": amplitude,
             "swing_reason": None}
+
+
+def _far_above(network: SmallSignal, output_net: str, limit: float
+               ) -> Callable[[Array, Array], Array]:
+    """Samples whose THD was over :data:`FAR_ABOVE` times the limit in both of the last two
+    periods: the search only asks "above the limit or not", and an overdriven stage's slow
+    bias drift (its coupling capacitors recharging) would otherwise set the run's length."""
+    column = network.solution.circuit.net_index.get(output_net)
+
+    def decided(grid: Array, previous: Array) -> Array:
+        if column is None:  # the output is ground: nothing to decide
+            return np.zeros(grid.shape[1], dtype=bool)
+        return ((thd(grid[:, :, column].T) >= FAR_ABOVE * limit)
+                & (thd(previous[:, :, column].T) >= FAR_ABOVE * limit))
+
+    return decided
+
+
+def _except_last(decided: Callable[[Array, Array], Array]) -> Callable[[Array, Array], Array]:
+    """``decided`` for every sample but the last: the deepest ladder sample gives the headroom
+    and the overdrive clipping, which need its settled waveform, not just its THD."""
+    def rule(grid: Array, previous: Array) -> Array:
+        known = decided(grid, previous)
+        known[-1] = False
+        return known
+
+    return rule
 
 
 def _interpolate(amplitudes: Array, levels: Array, swings: Array, limit: float
