@@ -73,7 +73,7 @@ def bipolar_model(values: Mapping[str, Array], temperature_k: Array) -> tuple[Ev
     def evaluate(u: Array) -> tuple[Array, Array]:
         r = physics.bipolar(u[:, 0], u[:, 1], i_sat, beta_f, beta_r, values["early_voltage"],
                             n_vt)
-        return np.stack([r.ic, r.ib, r.ie], -1), np.stack([r.d_dvbe, r.d_dvbc], -1)
+        return np.stack([r.ic, r.ib, r.ie], -1), r.jacobian
 
     def limit(u_new: Array, u_old: Array) -> Array:
         return physics.limit_junction(u_new, u_old, n_vt[:, None], v_crit[:, None])

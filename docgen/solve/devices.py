@@ -108,6 +108,8 @@ def limit_junction(v_new: Array, v_old: Array, n_vt: Array, v_critical: Array) -
     Newton from overshooting into overflow.  Steps below the critical voltage pass unchanged.
     """
     big_step = (v_new > v_critical) & (np.abs(v_new - v_old) > 2.0 * n_vt)
+    if not big_step.any():  # the usual case near convergence (and every time step)
+        return v_new
     from_forward = 1.0 + (v_new - v_old) / n_vt
     safe_arg = np.where(from_forward > 0, from_forward, 1.0)
     stepped = np.where(from_forward > 0, v_old + n_vt * np.log(safe_arg), v_critical)
@@ -170,15 +172,24 @@ def diode(
 class BipolarCurrents(NamedTuple):
     """Ebers–Moll terminal currents (into c, b, e; npn polarity) and their derivatives.
 
-    ``d_dvbe`` and ``d_dvbc`` are shaped ``(S, 3)``: the derivative of each terminal current
-    (c, b, e) with respect to vBE and vBC.
+    ``jacobian`` is shaped ``(S, 3, 2)``: the derivative of each terminal current (c, b, e)
+    with respect to vBE and vBC; ``d_dvbe`` and ``d_dvbc`` are its two columns.
     """
 
     ic: Array
     ib: Array
     ie: Array
-    d_dvbe: Array
-    d_dvbc: Array
+    jacobian: Array
+
+    @property
+    def d_dvbe(self) -> Array:
+        """``(S, 3)`` ∂(ic, ib, ie)/∂vBE."""
+        return self.jacobian[..., 0]
+
+    @property
+    def d_dvbc(self) -> Array:
+        """``(S, 3)`` ∂(ic, ib, ie)/∂vBC."""
+        return self.jacobian[..., 1]
 
 
 def bipolar(
@@ -204,12 +215,13 @@ def bipolar(
     dit_dvbc = -gec * early - (icc - iec) * inverse_va
     ic = it - iec / beta_reverse - JUNCTION_GMIN * vbc
     ib = icc / beta_forward + iec / beta_reverse + JUNCTION_GMIN * (vbe + vbc)
-    dic = np.stack([dit_dvbe, dit_dvbc - gec / beta_reverse - JUNCTION_GMIN], axis=-1)
-    dib = np.stack([gcc / beta_forward + JUNCTION_GMIN, gec / beta_reverse + JUNCTION_GMIN],
-                   axis=-1)
-    die = -(dic + dib)
-    d = np.stack([dic, dib, die], axis=-2)  # (S, terminal, control)
-    return BipolarCurrents(ic, ib, -(ic + ib), d[..., 0], d[..., 1])
+    d = np.empty(np.shape(it) + (3, 2))  # (S, terminal c/b/e, control vBE/vBC)
+    d[..., 0, 0] = dit_dvbe
+    d[..., 0, 1] = dit_dvbc - gec / beta_reverse - JUNCTION_GMIN
+    d[..., 1, 0] = gcc / beta_forward + JUNCTION_GMIN
+    d[..., 1, 1] = gec / beta_reverse + JUNCTION_GMIN
+    np.negative(d[..., 0, :] + d[..., 1, :], out=d[..., 2, :])
+    return BipolarCurrents(ic, ib, -(ic + ib), d)
 
 
 class ChannelCurrent(NamedTuple):
