@@ -135,10 +135,24 @@ def _gates(designs: list[tuple[Record, Any]]) -> list[Any]:
         workers = min(len(designs), os.cpu_count() or 1)
         if workers < 2 or "fork" not in multiprocessing.get_all_start_methods():
             return [_gate_at(i) for i in range(len(designs))]
+        # the costliest first, so no worker is left with a large-signal run at the end
+        order = sorted(range(len(designs)), key=lambda i: -_expected_cost(designs[i][1]))
         with multiprocessing.get_context("fork").Pool(workers) as pool:
-            return pool.map(_gate_at, range(len(designs)), chunksize=1)
+            gates = pool.map(_gate_at, order, chunksize=1)
+        by_index = dict(zip(order, gates, strict=True))
+        return [by_index[i] for i in range(len(designs))]
     finally:
         _PENDING.clear()
+
+
+#: rough relative cost of the analyses a gate may run (the large-signal run dominates)
+_COSTS = {"transient": 8, "spread": 4, "feedback": 2}
+
+
+def _expected_cost(design: Any) -> int:
+    from docgen.check.gate import sections_for
+
+    return 1 + sum(_COSTS.get(name, 0) for name in sections_for(design))
 
 
 def check_designs(check_run: CheckRun, args: argparse.Namespace) -> int:
