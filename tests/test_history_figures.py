@@ -71,3 +71,22 @@ def _interp(freq, ac):
 
     return float(np.interp(math.log10(freq), np.log10(ac["freq_hz"]), ac["gain_db"],
                            left=math.nan, right=math.nan))
+
+
+def test_trend_redrawn_on_one_canvas_equals_a_fresh_figure():
+    """Trends of different lengths, units, gaps and panel counts, one after another on the
+    process's reused figures: each SVG equals the same trend drawn on a new figure."""
+    cases = [
+        (["a1", "b2", "c3"], [("midband gain", "dB", [10.0, None, 12.5])]),
+        ([f"r{i}" for i in range(10)],
+         [("low corner", "Hz", [5.0 + i for i in range(10)]),
+          ("input noise", "V", [None, None] + [1e-8 * (i + 1) for i in range(8)])]),
+        (["x", "y"], [("midband gain", "dB", [-3.0, 40.0])]),
+        ([f"q{i}" for i in range(12)],
+         [(f"figure {k}", "Ω", [10.0 ** (k - 2) * (1 + 0.1 * i) for i in range(12)])
+          for k in range(6)]),
+        (["m", "n", "o", "p"], [("low corner", "Hz", [1e3, 2e3, None, 4e3]),
+                                ("output impedance", "Ω", [50.0, 60.0, 70.0, 80.0])]),
+    ]
+    for index, (labels, series) in enumerate(cases + cases[:2]):
+        assert trend_plot(labels, series) == trend_plot(labels, series, reuse=False), index
