@@ -146,13 +146,15 @@ def newton(
     x, state = x0.copy(), {k: v.copy() for k, v in state0.items()}
     done = np.zeros(samples, dtype=bool)
     iterations = np.zeros(samples, dtype=int)
-    unsettled = np.full(samples, -1)
-    singular = np.zeros(samples, dtype=bool)
     node_count = problem.layout.node_count
     span = problem.remember("span", lambda: voltage_span(problem))
     linear = assemble_linear(problem, source_scale, node_gmin)
-    absolute = np.where(np.arange(problem.layout.size) < node_count,
-                        options.voltage_tolerance, options.current_tolerance)
+    absolute = problem.remember(("absolute tolerance", options.voltage_tolerance,
+                                 options.current_tolerance), lambda: np.where(
+        np.arange(problem.layout.size) < node_count, options.voltage_tolerance,
+        options.current_tolerance))
+    step = allowed = np.ones((samples, problem.layout.size))
+    bad = np.zeros(samples, dtype=bool)
     for _ in range(options.max_iterations):
         active = ~done
         matrix, rhs, new_state, limited = assemble(problem, x, state, source_scale, node_gmin,
@@ -168,9 +170,6 @@ def newton(
         allowed = options.relative_tolerance * np.maximum(np.abs(x_new), np.abs(x)) + absolute
         settled = np.all(step <= allowed, axis=1) & ~limited & ~broken
         iterations += active
-        moving = np.argmax(step / allowed, axis=1)
-        unsettled = np.where(active, moving, unsettled)
-        singular = np.where(active, bad, singular)
         x = np.where(active[:, None], x_new, x)
         for name, value in new_state.items():
             old = state.get(name, value)
@@ -178,8 +177,9 @@ def newton(
         done |= settled & active
         if done.all():
             break
-    unsettled = np.where(done, -1, unsettled)
-    return _Attempt(x, state, done, iterations, unsettled, singular & ~done)
+    # a sample still unconverged was active in the last iteration: its figures are that one's
+    unsettled = np.where(done, -1, np.argmax(step / allowed, axis=1))
+    return _Attempt(x, state, done, iterations, unsettled, bad & ~done)
 
 
 def _merge(into: _Attempt, part: _Attempt, index: Array) -> None:
