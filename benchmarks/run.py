@@ -201,6 +201,9 @@ def bench_generated(table: Table, args: argparse.Namespace) -> None:
     """A generated record of distinct designs with revisions in git, at two sizes."""
     from generate import make_record
 
+    if args.scaling:
+        bench_scaling(table, args)
+        return
     count, revisions = args.designs, args.revisions
     sizes = [count] if args.quick else sorted({max(1, count // 4), count})
     cold: dict[tuple[int, int], float] = {}
@@ -218,6 +221,28 @@ def bench_generated(table: Table, args: argparse.Namespace) -> None:
     if (count, 1) in cold and (count, 2) in cold:
         table.row("site", f"cores: {count} designs --jobs 1 / --jobs 2", None, None, "",
                   f"speed-up x{cold[count, 1] / cold[count, 2]:.2f}")
+
+
+def bench_scaling(table: Table, args: argparse.Namespace) -> None:
+    """Cold builds only, at each ``--scaling`` size with ``--jobs 1`` and ``--jobs 2``: wall,
+    CPU and CPU per design revision, each size against the smallest (near-linear is the
+    target), and the 200-design figure extrapolated from the largest size's CPU."""
+    from generate import make_record
+
+    revisions = args.revisions
+    first: dict[int, tuple[int, float, float]] = {}
+    for size in sorted(args.scaling):
+        for jobs in (1, 2):
+            with tempfile.TemporaryDirectory(prefix="docgen-bench-") as folder:
+                designs = make_record(Path(folder) / "record", size, revisions)
+                wall, cpu, _ = _build(designs, Path(folder), jobs)
+            base_size, base_wall, base_cpu = first.setdefault(jobs, (size, wall, cpu))
+            per = cpu / (size * revisions)
+            table.row("site", f"{size} generated x {revisions} --jobs {jobs}: cold", wall,
+                      None, "", f"cpu {cpu:.1f} s, {per:.3f} s cpu per design revision; "
+                      f"x{wall / base_wall:.2f} wall, x{cpu / base_cpu:.2f} cpu for "
+                      f"x{size / base_size:g} designs; 200 designs at this rate: "
+                      f"{per * 200 * revisions / 60:.1f} cpu-min")
 
 
 # -- docgen check -----------------------------------------------------------------------------
@@ -285,6 +310,9 @@ def parse(argv: list[str] | None) -> argparse.Namespace:
                         help="designs in the generated record (200; quick 2)")
     parser.add_argument("--revisions", type=int, default=None,
                         help="revisions of each generated design (10; quick 2)")
+    parser.add_argument("--scaling", type=int, nargs="+", default=None, metavar="DESIGNS",
+                        help="the generated part builds only cold, at each of these design "
+                        "counts (with --revisions each) and --jobs 1 and 2, to show scaling")
     parser.add_argument("--sections", action="store_true",
                         help="also time every further pipeline section per design (transient "
                         "with its swing search, feedback, spread, checks)")

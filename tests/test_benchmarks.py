@@ -83,3 +83,26 @@ def test_the_value_edit_moves_one_resistor_to_its_e24_neighbour_and_back(tmp_pat
             if a.value != b.value] == [("R1", 10e3, 11e3)]
     run._nudge_one(designs, 1)
     assert read_text(page.read_text(), str(page)).parts == before.parts
+
+
+def test_scaling_option_builds_cold_at_each_size(tmp_path: Path, monkeypatch, capsys) -> None:
+    """``--scaling`` builds each size cold with --jobs 1 and 2 and prints CPU per design
+    revision (the builds are replaced by a stand-in here: nothing is timed)."""
+    import run
+
+    args = run.parse(["--only", "generated", "--scaling", "2", "1", "--revisions", "2"])
+    assert args.scaling == [2, 1]
+    calls = []
+
+    def fake_build(designs: Path, work: Path, jobs: int) -> tuple[float, float, str]:
+        count = len(list(designs.glob("*.md")))
+        calls.append((count, jobs))
+        return 1.0 * count, 2.0 * count, ""
+
+    monkeypatch.setattr(run, "_build", fake_build)
+    run.bench_generated(run.Table(), args)
+    assert calls == [(1, 1), (1, 2), (2, 1), (2, 2)]
+    out = capsys.readouterr().out
+    assert "2 generated x 2 --jobs 2: cold" in out
+    assert "1.000 s cpu per design revision" in out  # 2 s cpu for 1 design x 2 revisions
+    assert "x2.00 wall, x2.00 cpu for x2 designs" in out
