@@ -9,8 +9,9 @@ drawn on the plot they constrain as :class:`Mark` objects.
 
 from __future__ import annotations
 
+import contextlib
 import io
-from collections.abc import Sequence
+from collections.abc import Callable, Iterator, Sequence
 from dataclasses import dataclass
 from typing import Any, Literal
 
@@ -80,11 +81,66 @@ def _eng(unit: str) -> Any:
 
 
 def _to_svg(fig: Any) -> str:
+    """The figure's SVG text; the figure is closed unless it is a reused canvas."""
     plt = _pyplot()
     buffer = io.StringIO()
     fig.savefig(buffer, format="svg", metadata={"Date": None, "Creator": "docgen"})
-    plt.close(fig)
+    if not getattr(fig, "docgen_canvas", False):
+        plt.close(fig)
     return buffer.getvalue()
+
+
+# --- canvases: one figure per figure kind and process, redrawn for each call ---------------
+#
+# Building a figure's axes and their tick objects is about a third of a small figure's cost,
+# and a site draws the same few kinds of figure hundreds of times.  Each kind's figure is
+# made once (axes, scales, fixed labels and locators set up by the kind's ``setup``) and
+# reused: its data artists and legend are removed, the axes re-limited, and the new data
+# drawn.  The SVG is byte for byte what a fresh figure gives (tests/test_site_plots.py).
+
+_CANVASES: dict[tuple[Any, ...], tuple[Any, list[Any]]] = {}
+_REUSE = [True]
+
+
+@contextlib.contextmanager
+def fresh_figures() -> Iterator[None]:
+    """Within the block every plot builds a new figure (the reference the canvases are
+    checked against)."""
+    _REUSE.append(False)
+    try:
+        yield
+    finally:
+        _REUSE.pop()
+
+
+def _canvas(key: tuple[Any, ...], setup: Callable[[], tuple[Any, list[Any]]]
+            ) -> tuple[Any, list[Any]]:
+    """The figure and axes for figure kind ``key``: a new one from ``setup`` the first time
+    (or always, inside :func:`fresh_figures`), else the kept one cleared of its data."""
+    if not _REUSE[-1]:
+        return setup()
+    _pyplot()  # rcParams as a fresh figure would see them
+    kept = _CANVASES.get(key)
+    if kept is None:
+        kept = _CANVASES[key] = setup()
+        kept[0].docgen_canvas = True
+    else:
+        _clear(kept[1])
+    return kept
+
+
+def _clear(axes: Sequence[Any]) -> None:
+    """Remove what one drawing added (data artists, legend, bar containers) and return the
+    axes to their state after setup: no data limits, autoscaling on, property cycles reset."""
+    for ax in axes:
+        for artist in [*ax.lines, *ax.patches, *ax.collections, *ax.texts]:
+            artist.remove()
+        ax.containers.clear()
+        if ax.get_legend() is not None:
+            ax.get_legend().remove()
+        ax.set_prop_cycle(None)
+        ax.relim()
+        ax.set_autoscale_on(True)
 
 
 def _figure(rows: int, *, sharex: bool = True, height: float = ROW_IN,
@@ -144,15 +200,19 @@ def frequency_response(freq_hz: Sequence[float], gain_db: Sequence[float],
                        marks: Sequence[Mark] = ()) -> str:
     """Bode plot: gain in dB (and phase in degrees when given) against log frequency."""
     rows = 2 if phase_deg is not None else 1
-    fig, axes = _figure(rows)
+
+    def setup() -> tuple[Any, list[Any]]:
+        fig, axes = _figure(rows)
+        for ax, label in zip(axes, ("gain (dB)", "phase (°)"), strict=False):
+            ax.set_ylabel(label)
+            _log_x(ax, "Hz")
+        axes[-1].set_xlabel("frequency")
+        return fig, axes
+
+    fig, axes = _canvas(("response", rows), setup)
     axes[0].plot(freq_hz, gain_db, color=CURVE_COLOURS[0])
-    axes[0].set_ylabel("gain (dB)")
     if phase_deg is not None:
         axes[1].plot(freq_hz, phase_deg, color=CURVE_COLOURS[1])
-        axes[1].set_ylabel("phase (°)")
-    for ax in axes:
-        _log_x(ax, "Hz")
-    axes[-1].set_xlabel("frequency")
     _draw_marks(axes, marks)
     return _to_svg(fig)
 
@@ -160,20 +220,25 @@ def frequency_response(freq_hz: Sequence[float], gain_db: Sequence[float],
 def curves(freq_hz: Sequence[float], series: Sequence[tuple[str, Sequence[float]]], *,
            unit: str, ylabel: str, log_y: bool = True, marks: Sequence[Mark] = ()) -> str:
     """Several named curves against log frequency on one axis (impedances, noise densities)."""
-    fig, axes = _figure(1)
+
+    def setup() -> tuple[Any, list[Any]]:
+        fig, axes = _figure(1)
+        _log_x(axes[0], "Hz")
+        if log_y:
+            from matplotlib.ticker import LogLocator, NullFormatter
+
+            axes[0].set_yscale("log")
+            axes[0].yaxis.set_minor_locator(LogLocator(base=10, subs=(2.0, 5.0), numticks=40))
+            axes[0].yaxis.set_minor_formatter(NullFormatter())
+        axes[0].set_xlabel("frequency")
+        return fig, axes
+
+    fig, axes = _canvas(("curves", log_y), setup)
     ax = axes[0]
     for index, (name, values) in enumerate(series):
         ax.plot(freq_hz, values, color=CURVE_COLOURS[index % len(CURVE_COLOURS)], label=name)
-    _log_x(ax, "Hz")
-    if log_y:
-        from matplotlib.ticker import LogLocator, NullFormatter
-
-        ax.set_yscale("log")
-        ax.yaxis.set_minor_locator(LogLocator(base=10, subs=(2.0, 5.0), numticks=40))
-        ax.yaxis.set_minor_formatter(NullFormatter())
     ax.yaxis.set_major_formatter(_eng(unit))
     ax.set_ylabel(ylabel)
-    ax.set_xlabel("frequency")
     ax.legend(loc="best", fontsize=7.5, frameon=False)  # names the curve, even a single one
     _draw_marks(axes, marks)
     return _to_svg(fig)
@@ -181,14 +246,19 @@ def curves(freq_hz: Sequence[float], series: Sequence[tuple[str, Sequence[float]
 
 def waveform(time_s: Sequence[float], traces: Sequence[tuple[str, Sequence[float]]]) -> str:
     """Voltages against time (the bench sine's steady state)."""
-    fig, axes = _figure(1)
+
+    def setup() -> tuple[Any, list[Any]]:
+        fig, axes = _figure(1)
+        axes[0].xaxis.set_major_formatter(_eng("s"))
+        axes[0].yaxis.set_major_formatter(_eng("V"))
+        axes[0].set_xlabel("time")
+        axes[0].set_ylabel("voltage")
+        return fig, axes
+
+    fig, axes = _canvas(("waveform",), setup)
     ax = axes[0]
     for index, (name, values) in enumerate(traces):
         ax.plot(time_s, values, color=CURVE_COLOURS[index % len(CURVE_COLOURS)], label=name)
-    ax.xaxis.set_major_formatter(_eng("s"))
-    ax.yaxis.set_major_formatter(_eng("V"))
-    ax.set_xlabel("time")
-    ax.set_ylabel("voltage")
     if len(traces) > 1:
         ax.legend(loc="best", fontsize=7.5, frameon=False)
     return _to_svg(fig)
@@ -196,14 +266,19 @@ def waveform(time_s: Sequence[float], traces: Sequence[tuple[str, Sequence[float
 
 def spectrum(orders: Sequence[int], level_db: Sequence[float]) -> str:
     """Harmonic levels in dB relative to the fundamental, as bars by harmonic order."""
-    fig, axes = _figure(1, height=2.2)
+
+    def setup() -> tuple[Any, list[Any]]:
+        fig, axes = _figure(1, height=2.2)
+        axes[0].set_xlabel("harmonic order")
+        axes[0].set_ylabel("level (dB re fundamental)")
+        return fig, axes
+
+    fig, axes = _canvas(("spectrum",), setup)
     ax = axes[0]
     bottom = min(min(level_db, default=-120.0), -20.0) - 10.0
     ax.bar(list(orders), [v - bottom for v in level_db], bottom=bottom, width=0.6,
            color=CURVE_COLOURS[0])
     ax.set_xticks(list(orders))
-    ax.set_xlabel("harmonic order")
-    ax.set_ylabel("level (dB re fundamental)")
     ax.set_ylim(bottom, 5)
     return _to_svg(fig)
 
@@ -213,7 +288,18 @@ def histogram(samples: Sequence[float], *, unit: str, label: str, bins: int = 30
               marks: Sequence[Mark] = ()) -> str:
     """Distribution of one metric across boards: raw ``samples``, or ``counts`` per bin with
     the bin ``edges``."""
-    fig, axes = _figure(1, height=2.1, width=SMALL_WIDTH_IN)
+
+    def setup() -> tuple[Any, list[Any]]:
+        from matplotlib.ticker import MaxNLocator
+
+        fig, axes = _figure(1, height=2.1, width=SMALL_WIDTH_IN)
+        axes[0].yaxis.set_major_locator(MaxNLocator(integer=True))
+        # at most four x intervals: labels must not collide on a small plot
+        axes[0].xaxis.set_major_locator(MaxNLocator(nbins=4))
+        axes[0].set_ylabel("boards")
+        return fig, axes
+
+    fig, axes = _canvas(("histogram",), setup)
     ax = axes[0]
     if counts is not None and edges is not None:
         widths = [b - a for a, b in zip(edges[:-1], edges[1:], strict=True)]
@@ -221,13 +307,8 @@ def histogram(samples: Sequence[float], *, unit: str, label: str, bins: int = 30
                color=CURVE_COLOURS[0])
     else:
         ax.hist(list(samples), bins=bins, color=CURVE_COLOURS[0], histtype="stepfilled")
-    from matplotlib.ticker import MaxNLocator
-
-    ax.yaxis.set_major_locator(MaxNLocator(integer=True))
-    ax.xaxis.set_major_locator(MaxNLocator(nbins=4))  # labels must not collide on a small plot
     ax.xaxis.set_major_formatter(_eng(unit))
     ax.set_xlabel(label)
-    ax.set_ylabel("boards")
     _draw_marks(axes, marks)
     return _to_svg(fig)
 
@@ -235,11 +316,16 @@ def histogram(samples: Sequence[float], *, unit: str, label: str, bins: int = 30
 def drift(temperature_c: Sequence[float], values: Sequence[float], *, unit: str,
           label: str, marks: Sequence[Mark] = ()) -> str:
     """One metric against ambient temperature."""
-    fig, axes = _figure(1, height=2.1, width=SMALL_WIDTH_IN)
+
+    def setup() -> tuple[Any, list[Any]]:
+        fig, axes = _figure(1, height=2.1, width=SMALL_WIDTH_IN)
+        axes[0].set_xlabel("ambient (°C)")
+        return fig, axes
+
+    fig, axes = _canvas(("drift",), setup)
     ax = axes[0]
     ax.plot(temperature_c, values, marker="o", markersize=3, color=CURVE_COLOURS[0])
     ax.yaxis.set_major_formatter(_eng(unit))
-    ax.set_xlabel("ambient (°C)")
     ax.set_ylabel(label)
     _draw_marks(axes, marks)
     return _to_svg(fig)

@@ -73,3 +73,62 @@ def test_every_plot_kind_is_well_formed_svg() -> None:
     ]
     for svg in svgs:
         ElementTree.fromstring(svg)
+
+
+def _canvas_cases() -> list[tuple[str, object]]:
+    """Calls of every figure kind in an order that leaves different state behind each time:
+    wider and narrower ranges, marks of each form, legends of one and two curves, other
+    units, log and linear y, one and two panels."""
+    narrow = FREQ[10:30]
+    wave = [k * 1e-5 for k in range(100)]
+    point = plots.Mark("point", 18.0, 22.0, "gain at 1 kHz", at=1e3)
+    return [
+        ("response", lambda: plots.frequency_response(FREQ, GAIN, PHASE, marks=[point])),
+        ("response", lambda: plots.frequency_response(narrow, GAIN[10:30])),
+        ("response", lambda: plots.frequency_response(
+            FREQ, [g - 40 for g in GAIN], PHASE, marks=[plots.Mark("x", 20.0, 2e5, "band"),
+                                                        plots.Mark("point", None, -80.0, "p",
+                                                                   at=1e4, panel=1)])),
+        ("response", lambda: plots.frequency_response(narrow, GAIN[10:30], PHASE[10:30])),
+        ("curves", lambda: plots.curves(FREQ, [("input", [47e3] * 51), ("output", GAIN)],
+                                        unit="Ω", ylabel="|Z|", log_y=False)),
+        ("curves", lambda: plots.curves(narrow, [("output", [1e-8 * (1 + k) for k in range(20)])],
+                                        unit="V/√Hz", ylabel="density",
+                                        marks=[plots.Mark("point", None, 5e-8, "n", at=1e3)])),
+        ("curves", lambda: plots.curves(FREQ, [("a", [10.0 ** (k / 10) for k in range(51)]),
+                                               ("b", [2.0] * 51)], unit="Ω", ylabel="|Z|")),
+        ("curves", lambda: plots.curves(narrow, [("supply", GAIN[10:30])], unit="dB",
+                                        ylabel="rejection", log_y=False,
+                                        marks=[plots.Mark("y", 19.0, None, "r")])),
+        ("waveform", lambda: plots.waveform(wave, [("in", [math.sin(k / 10) for k in range(100)]),
+                                                   ("out", [3 * math.sin(k / 10) for k in
+                                                            range(100)])])),
+        ("waveform", lambda: plots.waveform(wave[:40], [("out", [0.01 * k for k in range(40)])])),
+        ("spectrum", lambda: plots.spectrum([2, 3, 4, 5, 6], [-40.0, -55.0, -70.0, -80, -90])),
+        ("spectrum", lambda: plots.spectrum([2, 3], [-10.0, -150.0])),
+        ("histogram", lambda: plots.histogram([1.0, 2.0, 2.5], unit="V", label="voltage at out",
+                                              counts=[1, 2], edges=[0.5, 1.5, 2.5],
+                                              marks=[plots.Mark("x", 0.7, 2.4, "v")])),
+        ("histogram", lambda: plots.histogram([0.1 * k for k in range(40)], unit="dB",
+                                              label="gain")),
+        ("histogram", lambda: plots.histogram([], unit="A", label="current", counts=[5, 0, 300, 2],
+                                              edges=[1e-3, 2e-3, 3e-3, 4e-3, 5e-3],
+                                              marks=[plots.Mark("x", None, 4.5e-3, "i")])),
+        ("drift", lambda: plots.drift([-20, 25, 60], [1e-3, 1.1e-3, 1.2e-3], unit="A",
+                                      label="Q1 collector current",
+                                      marks=[plots.Mark("y", 0.9e-3, 1.3e-3, "c")])),
+        ("drift", lambda: plots.drift([0, 25, 40, 70], [20.0, 19.0, 18.5, 17.0], unit="dB",
+                                      label="gain")),
+    ]
+
+
+def test_reused_figures_give_the_bytes_of_fresh_ones() -> None:
+    """Each figure kind is drawn on one figure kept per process; whatever was drawn on it
+    before, its SVG must be byte for byte what a newly built figure gives (the reference:
+    the same call inside plots.fresh_figures())."""
+    cases = _canvas_cases()
+    for index, (kind, draw) in enumerate(cases + cases[:4] + cases[::-1]):
+        reused = draw()
+        with plots.fresh_figures():
+            fresh = draw()
+        assert reused == fresh, (index, kind)
