@@ -113,10 +113,12 @@ def solve_all(view: RecordView, wanted: list[str], options: BuildOptions,
             report.reused.append(rel)
         else:
             missing.append(rel)
-    jobs = max(1, min(options.jobs or os.cpu_count() or 1, len(missing) or 1))
+    cores = options.jobs or os.cpu_count() or 1
+    jobs = max(1, min(cores, len(missing) or 1))
     with _progress(len(wanted), options.progress) as bar:
         bar.update(len(wanted) - len(missing))
-        for rel, bundle in _compute(view, missing, jobs, options.designs_dir):
+        # one design to do and a core to spare (a one-design rebuild): it plots with a helper
+        for rel, bundle in _compute(view, missing, jobs, options.designs_dir, cores > 1):
             cache.put(keys[rel], bundle)  # a docgen crash too: the key covers docgen's code
             bundles[rel] = bundle
             report.solved.append(rel)
@@ -125,12 +127,13 @@ def solve_all(view: RecordView, wanted: list[str], options: BuildOptions,
     return bundles
 
 
-def _compute(view: RecordView, missing: list[str], jobs: int,
-             designs_dir: Path) -> Iterable[tuple[str, dict[str, Any]]]:
+def _compute(view: RecordView, missing: list[str], jobs: int, designs_dir: Path,
+             helper: bool = False) -> Iterable[tuple[str, dict[str, Any]]]:
     if jobs == 1:
         for rel in missing:
             design = view.entries[rel].design
-            yield rel, compute_bundle(design, view.models_for(design))  # type: ignore[arg-type]
+            yield rel, compute_bundle(design, view.models_for(design),  # type: ignore[arg-type]
+                                      helper=helper and len(missing) == 1)
         return
     import multiprocessing
     from concurrent.futures import ProcessPoolExecutor  # only when something is to be solved

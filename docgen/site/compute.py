@@ -8,6 +8,7 @@ diagnostics in its bundle and never stops the others.
 
 from __future__ import annotations
 
+import contextlib
 import json
 import traceback
 from collections.abc import Mapping
@@ -33,10 +34,15 @@ def results_text(results: dict[str, Any]) -> str:
     return json.dumps(results, sort_keys=True, indent=1, ensure_ascii=False) + "\n"
 
 
-def compute_bundle(design: Design, library: Mapping[str, ModelDef]) -> dict[str, Any]:
-    """Results, page sections (with figures) and schematic for one design."""
+def compute_bundle(design: Design, library: Mapping[str, ModelDef],
+                   helper: bool = False) -> dict[str, Any]:
+    """Results, page sections (with figures) and schematic for one design.
+
+    :param helper: draw the schematic and the spread sections in a second (forked) process
+        while this one plots the rest: a build that solves one design has a core to spare,
+        and the figures and schematic are most of a design's time.  The bundle is the same.
+    """
     from docgen import pipeline
-    from docgen.site.sections import build_sections
     from docgen.units import round_results
 
     bundle: dict[str, Any] = {"path": design.path, "results": None, "errors": [],
@@ -51,17 +57,107 @@ def compute_bundle(design: Design, library: Mapping[str, ModelDef]) -> dict[str,
         bundle["internal_error"] = True
         results = None
     bundle["results"] = results
-    if results is not None:
-        # the published text is made once and cached with the bundle: a no-change rebuild
-        # then copies it instead of re-encoding (indented JSON is the slow encoder)
-        bundle["results_json"] = results_text(results)
-        try:
-            bundle["sections"] = build_sections(design, results)
-        except Exception as exc:  # noqa: BLE001
-            bundle["errors"].append(_internal_error(design, "plotting", exc))
-            bundle["internal_error"] = True
+    if results is None:
+        _draw(design, results, bundle)
+        return bundle
+    # the published text is made once and cached with the bundle: a no-change rebuild then
+    # copies it instead of re-encoding (indented JSON is the slow encoder)
+    bundle["results_json"] = results_text(results)
+    if helper and _with_helper(design, results, bundle):
+        return bundle
+    _plot(design, results, bundle, builders())
     _draw(design, results, bundle)
     return bundle
+
+
+def builders() -> list[Any]:
+    """The page's section builders in page order (:data:`docgen.site.sections.BUILDERS`)."""
+    from docgen.site import more_sections, spread_sections  # noqa: F401 - register builders
+    from docgen.site.sections import BUILDERS
+
+    return list(BUILDERS)
+
+
+def _plot(design: Design, results: dict[str, Any], bundle: dict[str, Any],
+          chosen: list[Any]) -> None:
+    """``bundle["sections"]`` from the builders ``chosen``; a crash becomes an error entry."""
+    try:
+        bundle["sections"] = [s for s in _sections(design, results, chosen) if s is not None]
+    except Exception as exc:  # noqa: BLE001
+        bundle["errors"].append(_internal_error(design, "plotting", exc))
+        bundle["internal_error"] = True
+
+
+def _sections(design: Design, results: dict[str, Any], chosen: list[Any]) -> list[Any]:
+    """Each builder's section (``None`` where it has none), in the order given."""
+    return [builder(design, results) for builder in chosen]
+
+
+def _helper_share(every: list[Any]) -> list[Any]:
+    """What the helper plots besides the schematic: the spread sections (histograms are many
+    small figures); about half the drawing time of a design with them."""
+    return [b for b in every if b.__module__.endswith(".spread_sections")]
+
+
+def _helper_work() -> dict[str, Any]:
+    """In the forked helper: the schematic and the helper's share of the sections (``None``
+    for the sections if a builder crashed: the parent then plots everything itself)."""
+    design, results = _WORKER["helper"]
+    part: dict[str, Any] = {"schematic": None, "schematic_problem": None}
+    _draw(design, results, part)
+    try:
+        sections = _sections(design, results, _helper_share(builders()))
+    except Exception:  # noqa: BLE001 - reported by the parent's own run of the builders
+        sections = None
+    return {"part": part, "sections": sections}
+
+
+def _preload() -> None:
+    """Import the plotting and drawing libraries (before forking, so the helper has them)."""
+    import matplotlib
+
+    matplotlib.use("Agg", force=True)
+    import matplotlib.pyplot  # noqa: F401
+
+    with contextlib.suppress(ImportError):  # a build without the drawer says so on the page
+        import docgen.draw  # noqa: F401
+
+
+def _with_helper(design: Design, results: dict[str, Any], bundle: dict[str, Any]) -> bool:
+    """Plot and draw with a forked helper (see :func:`compute_bundle`); ``False`` if no
+    helper could be had (the caller then does everything itself)."""
+    import multiprocessing
+    import sys
+    from concurrent.futures import ProcessPoolExecutor
+    from concurrent.futures.process import BrokenProcessPool
+
+    if not sys.platform.startswith("linux"):
+        return False  # the helper inherits the design by forking (it does not pickle)
+    every = builders()
+    shared = _helper_share(every)
+    own = [b for b in every if b not in shared]
+    _preload()
+    _WORKER["helper"] = (design, results)
+    try:
+        with ProcessPoolExecutor(1, mp_context=multiprocessing.get_context("fork")) as pool:
+            future = pool.submit(_helper_work)
+            try:
+                mine: list[Any] | None = _sections(design, results, own)
+            except Exception:  # noqa: BLE001 - plotted again below, as without a helper
+                mine = None
+            helped = future.result()
+    except (OSError, BrokenProcessPool):
+        return False
+    finally:
+        _WORKER.pop("helper", None)
+    bundle.update(helped["part"])
+    if mine is None or helped["sections"] is None:
+        _plot(design, results, bundle, every)  # the same error entry as a run without helper
+        return True
+    by_builder = dict(zip(own, mine, strict=True)) | dict(zip(shared, helped["sections"],
+                                                                strict=True))
+    bundle["sections"] = [s for b in every if (s := by_builder[b]) is not None]
+    return True
 
 
 def _draw(design: Design, results: dict[str, Any] | None, bundle: dict[str, Any]) -> None:

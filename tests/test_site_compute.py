@@ -1,0 +1,27 @@
+"""A design plotted and drawn with a forked helper (docgen/site/compute.py) gives the very bundle
+it gives alone: same sections in page order, same figures byte for byte, same schematic."""
+
+from __future__ import annotations
+
+import json
+import sys
+from pathlib import Path
+
+import pytest
+from site_helpers import FIXTURES
+
+from docgen.site.compute import compute_bundle
+from docgen.site.record_view import read_record
+
+
+@pytest.mark.skipif(not sys.platform.startswith("linux"), reason="the helper is forked")
+def test_a_helper_process_changes_nothing_in_the_bundle() -> None:
+    view = read_record(Path(FIXTURES))
+    design = view.entries["rc-filter.md"].design
+    assert design is not None
+    alone = compute_bundle(design, view.models_for(design))
+    helped = compute_bundle(design, view.models_for(design), helper=True)
+    titles = [s["title"] for s in alone["sections"]]
+    assert "Spread across boards" in titles and titles[0] == "Operating point"  # both shares
+    assert alone["schematic"]
+    assert json.dumps(helped, sort_keys=True) == json.dumps(alone, sort_keys=True)
