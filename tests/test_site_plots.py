@@ -106,14 +106,14 @@ def _canvas_cases() -> list[tuple[str, object]]:
         ("waveform", lambda: plots.waveform(wave[:40], [("out", [0.01 * k for k in range(40)])])),
         ("spectrum", lambda: plots.spectrum([2, 3, 4, 5, 6], [-40.0, -55.0, -70.0, -80, -90])),
         ("spectrum", lambda: plots.spectrum([2, 3], [-10.0, -150.0])),
-        ("histogram", lambda: plots.histogram([1.0, 2.0, 2.5], unit="V", label="voltage at out",
-                                              counts=[1, 2], edges=[0.5, 1.5, 2.5],
-                                              marks=[plots.Mark("x", 0.7, 2.4, "v")])),
-        ("histogram", lambda: plots.histogram([0.1 * k for k in range(40)], unit="dB",
-                                              label="gain")),
-        ("histogram", lambda: plots.histogram([], unit="A", label="current", counts=[5, 0, 300, 2],
-                                              edges=[1e-3, 2e-3, 3e-3, 4e-3, 5e-3],
-                                              marks=[plots.Mark("x", None, 4.5e-3, "i")])),
+        ("histogram", lambda: plots._histogram_figure([1, 2], [0.5, 1.5, 2.5], unit="V",
+                                                      label="voltage at out",
+                                                      marks=[plots.Mark("x", 0.7, 2.4, "v")])),
+        ("histogram", lambda: plots._histogram_figure([3, 1, 4, 1], [0.0, 0.1, 0.2, 0.3, 0.4],
+                                                      unit="dB", label="gain")),
+        ("histogram", lambda: plots._histogram_figure(
+            [5, 0, 300, 2], [1e-3, 2e-3, 3e-3, 4e-3, 5e-3], unit="A", label="current",
+            marks=[plots.Mark("x", None, 4.5e-3, "i"), plots.Mark("y", 50, None, "n")])),
         ("drift", lambda: plots.drift([-20, 25, 60], [1e-3, 1.1e-3, 1.2e-3], unit="A",
                                       label="Q1 collector current",
                                       marks=[plots.Mark("y", 0.9e-3, 1.3e-3, "c")])),
@@ -132,3 +132,76 @@ def test_reused_figures_give_the_bytes_of_fresh_ones() -> None:
         with plots.fresh_figures():
             fresh = draw()
         assert reused == fresh, (index, kind)
+
+
+# --- the histogram written directly as SVG, against matplotlib's drawing of it -------------
+
+HISTOGRAMS = [  # (counts, edges, unit, label, marks): shapes, units and limits of many kinds
+    ([1, 2], [0.5, 1.5, 2.5], "V", "voltage at out", [plots.Mark("x", 0.7, 2.4, "v")]),
+    ([3, 9, 27, 30, 12, 2], [12.4 + 0.05 * k for k in range(7)], "dB", "gain at 1000 Hz",
+     [plots.Mark("x", 12.2, 13.2, "g")]),
+    ([5, 0, 300, 2], [1e-3, 2e-3, 3e-3, 4e-3, 5e-3], "A", "Q1 collector current",
+     [plots.Mark("x", None, 4.5e-3, "i")]),
+    ([40] * 10 + [1], [-5.0 + k for k in range(12)], "%", "distortion", []),
+    ([0, 0, 0], [47e3, 47.5e3, 48e3, 48.5e3], "Ω", "input impedance", []),
+    ([2, 50, 7], [8.1e-7, 8.4e-7, 8.7e-7, 9.0e-7], "V", "input noise", [
+        plots.Mark("x", 7.9e-7, None, "n")]),
+    ([1, 1, 1, 1], [-1.0, -0.5, 0.0, 0.5, 1.0], "°", "phase", [plots.Mark("x", 0.9, 0.95, "p")]),
+]
+
+
+def _geometry(svg: str) -> tuple[list[tuple[str, float, float]], list[list[float]], list[float]]:
+    """Texts with their anchor points, the bars' path coordinates and the limit lines' x."""
+    import re
+
+    root = ElementTree.fromstring(svg)
+    texts = [("".join(e.itertext()), float(e.get("x")), float(e.get("y")))
+             for e in root.iter() if e.tag.endswith("text")]
+    bars, limits = [], []
+    for element in root.iter():
+        style, path = element.get("style") or "", element.get("d") or ""
+        numbers = [float(v) for v in re.findall(r"-?[\d.]+", path)]
+        if f"fill: {plots.CURVE_COLOURS[0]}" in style:
+            bars.append(numbers[:8])
+        elif f"stroke: {plots.LIMIT_COLOUR}" in style and "clip-path" in element.attrib:
+            limits.append(numbers[0])
+    return texts, bars, limits
+
+
+@pytest.mark.parametrize("case", range(len(HISTOGRAMS)))
+def test_direct_histogram_matches_matplotlib(case: int) -> None:
+    """The histogram is written as SVG without matplotlib's figure; matplotlib's own drawing
+    of the same figure is the reference: the same texts (tick labels, axis labels, legend) at
+    the same places, the same bars and limit lines, within 0.05 pt (a fiftieth of a pixel)."""
+    counts, edges, unit, label, marks = HISTOGRAMS[case]
+    direct = plots.histogram([], unit=unit, label=label, counts=counts, edges=edges, marks=marks)
+    assert "matplotlib" not in direct  # written directly, not by the fallback
+    reference = plots._histogram_figure(counts, edges, unit=unit, label=label, marks=marks)
+    texts, bars, limits = _geometry(direct)
+    expected_texts, expected_bars, expected_limits = _geometry(reference)
+    assert [t[0] for t in texts] == [t[0] for t in expected_texts]
+    for got, want in zip(texts, expected_texts, strict=True):
+        assert got[1:] == pytest.approx(want[1:], abs=0.05), got[0]
+    assert len(bars) == len(expected_bars)  # every bin, empty ones too
+    for got, want in zip(bars, expected_bars, strict=True):
+        assert got == pytest.approx(want, abs=0.05)
+    assert limits == pytest.approx(expected_limits, abs=0.05)
+
+
+def test_direct_histogram_from_samples_bins_as_numpy_does() -> None:
+    """Raw samples are binned by numpy.histogram (the reference) into ``bins`` equal bins."""
+    import numpy as np
+
+    samples = [math.sin(k) ** 3 for k in range(500)]
+    counts, edges = np.histogram(samples, bins=12)
+    from_samples = plots.histogram(samples, unit="V", label="v", bins=12)
+    assert from_samples == plots.histogram([], unit="V", label="v", counts=counts.tolist(),
+                                           edges=edges.tolist())
+    assert len(_geometry(from_samples)[1]) == 12
+
+
+def test_histogram_with_other_marks_is_drawn_by_matplotlib() -> None:
+    """Only vertical limits are written directly; a horizontal one goes to matplotlib."""
+    svg = plots.histogram([], unit="V", label="v", counts=[1, 2], edges=[0.0, 1.0, 2.0],
+                          marks=[plots.Mark("y", 1.5, None, "n")])
+    assert "matplotlib.axis" in svg and plots.LIMIT_COLOUR in svg
