@@ -137,22 +137,9 @@ def _touch_one(designs: Path, round_number: int) -> None:
 def _nudge_one(designs: Path, round_number: int) -> str:
     """Move the first resistor of the first design to its E24 neighbour, up on even rounds and
     back down on odd ones (a one-design change that is solved, plotted and drawn again)."""
-    from docgen import eseries
-    from docgen.reader import read_text
-    from docgen.units import format_eng
+    from docgen.site.benchmark import nudge_value
 
-    first = _first_design(designs)
-    text = first.read_text()
-    part = next(p for p in read_text(text, str(first)).parts
-                if p.kind == "resistor" and p.value and "value" in p.spans)
-    step = eseries.next_up if round_number % 2 == 0 else eseries.next_down
-    new = format_eng(step(part.value, "E24"), "").replace(" ", "")
-    span = part.spans["value"]
-    lines = text.split("\n")
-    line = lines[span.line - 1]
-    lines[span.line - 1] = line[:span.col - 1] + new + line[span.col - 1 + span.width:]
-    first.write_text("\n".join(lines))
-    return f"{part.name} {part.value_text} -> {new}"
+    return nudge_value(_first_design(designs), up=round_number % 2 == 0)
 
 
 def build_rows(table: Table, label: str, designs: Path, work: Path, jobs: int,
