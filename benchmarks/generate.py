@@ -2,8 +2,11 @@
 
 Every design is a common-emitter stage of the invented demo scenario with its own supply,
 bias divider, collector and emitter resistors, coupling capacitors and bench (no two designs
-share a circuit).  Each later revision changes one value or adds a review note, one commit per
-revision, with fixed authors and dates so the repository is the same on every run.
+share a circuit).  Each later revision adds a review note above the circuit and moves one value
+to its E12 neighbour, one commit per revision, with fixed authors and dates so the repository
+is the same on every run.  About one revision in five lands on the value it had (347 of 1 800
+at 200 designs): a notes-only change, but one that moves the circuit's lines, so the history
+solves it again (results carry line numbers, and so does the solve key).
 """
 
 from __future__ import annotations
