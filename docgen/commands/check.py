@@ -116,10 +116,17 @@ _PENDING: list[tuple[Record, Any]] = []  # what forked workers check, by index
 
 
 def _gate_at(index: int) -> Any:
-    from docgen.check.gate import check_design
+    """The gate of one design, with the changed-since-approval finding added (both read only
+    this design, so the workers share them out: the approval check reads git history)."""
+    from docgen.check.gate import approval_problem, check_design
 
     record, design = _PENDING[index]
-    return check_design(design, record.models_for(design))
+    gate = check_design(design, record.models_for(design))
+    changed = approval_problem(design, record.root if Path(record.root).is_dir()
+                               else str(Path(record.root).parent))
+    if changed is not None:  # an approved design changed since approval: exit 1
+        gate.diagnostics.append(changed)
+    return gate
 
 
 def _gates(designs: list[tuple[Record, Any]]) -> list[Any]:
@@ -152,7 +159,8 @@ _COSTS = {"transient": 8, "spread": 4, "feedback": 2}
 def _expected_cost(design: Any) -> int:
     from docgen.check.gate import sections_for
 
-    return 1 + sum(_COSTS.get(name, 0) for name in sections_for(design))
+    approved = 2 if design.header.status == "approved" else 0  # its history is read too
+    return 1 + approved + sum(_COSTS.get(name, 0) for name in sections_for(design))
 
 
 def check_designs(check_run: CheckRun, args: argparse.Namespace) -> int:
@@ -163,16 +171,11 @@ def check_designs(check_run: CheckRun, args: argparse.Namespace) -> int:
     requirement and caution becomes a diagnostic.  Exit 1 when any of them is an error, 2 when
     a requirement or estimate line does not read or the circuit cannot be solved.
     """
-    from docgen.check.gate import approval_problem, exit_code
+    from docgen.check.gate import exit_code
 
     code = 0
     added: list[Diagnostic] = []
-    for (record, design), gate in zip(check_run.designs, _gates(check_run.designs),
-                                      strict=True):
-        changed = approval_problem(design, record.root if Path(record.root).is_dir()
-                                   else str(Path(record.root).parent))
-        if changed is not None:  # an approved design changed since approval: exit 1
-            gate.diagnostics.append(changed)
+    for gate in _gates(check_run.designs):
         added += gate.diagnostics
         check_run.notes += gate.notes
         check_run.reports.append(gate.report)
