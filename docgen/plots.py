@@ -179,9 +179,11 @@ def _draw_marks(axes: Sequence[Any], marks: Sequence[Mark]) -> None:
     if marks:
         from matplotlib.lines import Line2D
 
-        handle = Line2D([], [], **style)
-        axes[0].legend([handle], ["requirement limit"], loc="best", fontsize=7.5,
-                       frameon=False)
+        # the limit joins the curves' names when the plot has a legend already
+        handles, labels = (axes[0].get_legend_handles_labels()
+                           if axes[0].get_legend() is not None else ([], []))
+        axes[0].legend([*handles, Line2D([], [], **style)], [*labels, "requirement limit"],
+                       loc="best", fontsize=7.5, frameon=False)
 
 
 def _log_x(ax: Any, unit: str) -> None:

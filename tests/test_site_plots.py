@@ -62,6 +62,14 @@ def test_requirement_limits_are_drawn(mark: plots.Mark) -> None:
     assert "requirement limit" in _texts(marked)
 
 
+def test_limit_joins_the_curve_names_in_the_legend() -> None:
+    """A limit mark on a plot of named curves keeps the names beside the limit's entry."""
+    texts = _texts(plots.curves(FREQ, [("input", [47e3] * 51), ("output", [50.0] * 51)],
+                                unit="Ω", ylabel="|Z|",
+                                marks=[plots.Mark("point", 10e3, None, "zin", at=1e3)]))
+    assert {"input", "output", "requirement limit"} <= set(texts)
+
+
 def test_every_plot_kind_is_well_formed_svg() -> None:
     svgs = [
         plots.waveform([k * 1e-5 for k in range(100)],
