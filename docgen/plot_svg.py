@@ -35,6 +35,11 @@ def _number(value: float) -> str:
     return "0" if text in ("", "-0") else text
 
 
+GRID = 'style="fill: none; stroke: #d9d9d9; stroke-width: 0.6; stroke-linecap: square"'
+TICK = f'style="stroke: #000000; stroke-width: {_number(TICK_WIDTH)}"'
+CLIP = 'clip-path="url(#axes-area)"'  # bars, grid and limits stay inside the axes
+
+
 def _escape(text: str) -> str:
     return text.replace("&", "&amp;").replace("<", "&lt;").replace(">", "&gt;")
 
@@ -134,7 +139,6 @@ def histogram(counts: Sequence[float], edges: Sequence[float], *, unit: str, lab
     matplotlib."""
     from matplotlib.ticker import MaxNLocator, ScalarFormatter
 
-    css, ascent, descent = _font()
     width_pt, height_pt = plots.SMALL_WIDTH_IN * POINTS, HEIGHT_IN * POINTS
     left, right = plots.MARGIN_IN[0] * POINTS, width_pt - plots.MARGIN_IN[1] * POINTS
     top, bottom = plots.MARGIN_IN[3] * POINTS, height_pt - plots.MARGIN_IN[2] * POINTS
@@ -151,47 +155,21 @@ def histogram(counts: Sequence[float], edges: Sequence[float], *, unit: str, lab
     def y_at(value: float) -> float:
         return bottom - (value - ylo) / (yhi - ylo) * (bottom - top)
 
-    clip = 'clip-path="url(#axes-area)"'
     out = [_head(width_pt, height_pt),
            f'  <g id="axes_1">\n   <path d="{_rectangle(left, top, right, bottom)}" '
            'style="fill: #ffffff"/>']
     bars: list[Box] = []
     for low, high, count in zip(edges[:-1], edges[1:], counts, strict=True):
         bars.append((x_at(low), y_at(count), x_at(high), y_at(0.0)))
-        out.append(f'   <path d="{_rectangle(*bars[-1])}" {clip} '
+        out.append(f'   <path d="{_rectangle(*bars[-1])}" {CLIP} '
                    f'style="fill: {plots.CURVE_COLOURS[0]}"/>')
-    grid = 'style="fill: none; stroke: #d9d9d9; stroke-width: 0.6; stroke-linecap: square"'
-    tick = f'style="stroke: #000000; stroke-width: {_number(TICK_WIDTH)}"'
-    out.append(f'   <defs>\n    <path id="xtick" d="M 0 0 L 0 {_number(TICK_LENGTH)}" {tick}/>'
-               f'\n    <path id="ytick" d="M 0 0 L {_number(-TICK_LENGTH)} 0" {tick}/>\n'
-               '   </defs>')
-    for value, text in xticks:
-        x = x_at(value)
-        out.append(f'   <path d="M {_number(x)} {_number(bottom)} L {_number(x)} '
-                   f'{_number(top)}" {clip} {grid}/>')
-        out.append(f'   <use xlink:href="#xtick" x="{_number(x)}" y="{_number(bottom)}" {tick}/>')
-        out.append("   " + _text(x, bottom + TICK_LENGTH + TICK_PAD + ascent * FONT_SIZE, text,
-                                 anchor="middle"))
-    line_height = (ascent + descent) * FONT_SIZE
-    out.append("   " + _text((left + right) / 2, bottom + TICK_LENGTH + TICK_PAD + line_height
-                             + LABEL_PAD + ascent * FONT_SIZE, label, anchor="middle"))
-    widest = 0.0
-    for value, text in yticks:
-        y = y_at(value)
-        out.append(f'   <path d="M {_number(left)} {_number(y)} L {_number(right)} '
-                   f'{_number(y)}" {clip} {grid}/>')
-        out.append(f'   <use xlink:href="#ytick" x="{_number(left)}" y="{_number(y)}" {tick}/>')
-        out.append("   " + _text(left - TICK_LENGTH - TICK_PAD, y + ascent * FONT_SIZE / 2, text,
-                                 anchor="end"))
-        widest = max(widest, _width(text, FONT_SIZE))
-    out.append("   " + _text(left - TICK_LENGTH - TICK_PAD - widest - LABEL_PAD
-                             - descent * FONT_SIZE, (top + bottom) / 2, "boards",
-                             anchor="middle", rotate=90))
+    out.append(_x_axis([(x_at(v), text) for v, text in xticks], label, (left, top, right, bottom)))
+    out.append(_y_axis([(y_at(v), text) for v, text in yticks], (left, top, right, bottom)))
     dashed = f'style="fill: none; stroke-dasharray: 3.7,1.6; stroke: {plots.LIMIT_COLOUR}"'
     for value in limits:
         x = x_at(value)
         out.append(f'   <path d="M {_number(x)} {_number(bottom)} L {_number(x)} '
-                   f'{_number(top)}" {clip} {dashed}/>')
+                   f'{_number(top)}" {CLIP} {dashed}/>')
     out.append(f'   <path d="{_rectangle(left, top, right, bottom)} z" style="fill: none; '
                'stroke: #555555; stroke-width: 0.7; stroke-linejoin: miter; '
                'stroke-linecap: square"/>')
@@ -201,6 +179,46 @@ def histogram(counts: Sequence[float], edges: Sequence[float], *, unit: str, lab
     out.append(f'  </g>\n </g>\n <defs>\n  <clipPath id="axes-area">\n   <rect x="{_number(left)}"'
                f' y="{_number(top)}" width="{_number(right - left)}" height="'
                f'{_number(bottom - top)}"/>\n  </clipPath>\n </defs>\n</svg>\n')
+    return "\n".join(out)
+
+
+
+def _x_axis(ticks: list[tuple[float, str]], label: str, axes: Box) -> str:
+    """Grid lines, tick marks and labels at ``ticks`` (SVG x, text) and the axis label."""
+    _, ascent, descent = _font()
+    left, top, right, bottom = axes
+    below = bottom + TICK_LENGTH + TICK_PAD
+    out = [f'   <defs>\n    <path id="xtick" d="M 0 0 L 0 {_number(TICK_LENGTH)}" {TICK}/>'
+           '\n   </defs>']
+    for x, text in ticks:
+        out.append(f'   <path d="M {_number(x)} {_number(bottom)} L {_number(x)} '
+                   f'{_number(top)}" {CLIP} {GRID}/>')
+        out.append(f'   <use xlink:href="#xtick" x="{_number(x)}" y="{_number(bottom)}" '
+                   f'{TICK}/>')
+        out.append("   " + _text(x, below + ascent * FONT_SIZE, text, anchor="middle"))
+    # the axis label's top sits a label pad below the tick labels' line (ascent + descent)
+    out.append("   " + _text((left + right) / 2, below + (2 * ascent + descent) * FONT_SIZE
+                             + LABEL_PAD, label, anchor="middle"))
+    return "\n".join(out)
+
+
+def _y_axis(ticks: list[tuple[float, str]], axes: Box) -> str:
+    """Grid lines, tick marks and labels at ``ticks`` (SVG y, text) and the "boards" label,
+    a label pad left of the widest tick label."""
+    _, ascent, descent = _font()
+    left, top, right, bottom = axes
+    before = left - TICK_LENGTH - TICK_PAD
+    out = [f'   <defs>\n    <path id="ytick" d="M 0 0 L {_number(-TICK_LENGTH)} 0" {TICK}/>'
+           '\n   </defs>']
+    for y, text in ticks:
+        out.append(f'   <path d="M {_number(left)} {_number(y)} L {_number(right)} '
+                   f'{_number(y)}" {CLIP} {GRID}/>')
+        out.append(f'   <use xlink:href="#ytick" x="{_number(left)}" y="{_number(y)}" '
+                   f'{TICK}/>')
+        out.append("   " + _text(before, y + ascent * FONT_SIZE / 2, text, anchor="end"))
+    widest = max((_width(text, FONT_SIZE) for _, text in ticks), default=0.0)
+    out.append("   " + _text(before - widest - LABEL_PAD - descent * FONT_SIZE,
+                             (top + bottom) / 2, "boards", anchor="middle", rotate=90))
     return "\n".join(out)
 
 
