@@ -167,9 +167,7 @@ def histogram(counts: Sequence[float], edges: Sequence[float], *, unit: str, lab
     out.append(_y_axis([(y_at(v), text) for v, text in yticks], (left, top, right, bottom)))
     dashed = f'style="fill: none; stroke-dasharray: 3.7,1.6; stroke: {plots.LIMIT_COLOUR}"'
     for value in limits:
-        x = x_at(value)
-        out.append(f'   <path d="M {_number(x)} {_number(bottom)} L {_number(x)} '
-                   f'{_number(top)}" {CLIP} {dashed}/>')
+        out.append(_line(x_at(value), bottom, x_at(value), top, dashed))
     out.append(f'   <path d="{_rectangle(left, top, right, bottom)} z" style="fill: none; '
                'stroke: #555555; stroke-width: 0.7; stroke-linejoin: miter; '
                'stroke-linecap: square"/>')
@@ -182,6 +180,16 @@ def histogram(counts: Sequence[float], edges: Sequence[float], *, unit: str, lab
     return "\n".join(out)
 
 
+def _line(x0: float, y0: float, x1: float, y1: float, style: str) -> str:
+    """A straight line clipped to the axes."""
+    return (f'   <path d="M {_number(x0)} {_number(y0)} L {_number(x1)} {_number(y1)}" {CLIP} '
+            f'{style}/>')
+
+
+def _tick(mark: str, x: float, y: float, label: str) -> str:
+    """Tick mark ``mark`` (a ``<defs>`` id) placed at ``x``, ``y``, then its label's SVG."""
+    return f'   <use xlink:href="#{mark}" x="{_number(x)}" y="{_number(y)}" {TICK}/>\n   {label}'
+
 
 def _x_axis(ticks: list[tuple[float, str]], label: str, axes: Box) -> str:
     """Grid lines, tick marks and labels at ``ticks`` (SVG x, text) and the axis label."""
@@ -191,11 +199,9 @@ def _x_axis(ticks: list[tuple[float, str]], label: str, axes: Box) -> str:
     out = [f'   <defs>\n    <path id="xtick" d="M 0 0 L 0 {_number(TICK_LENGTH)}" {TICK}/>'
            '\n   </defs>']
     for x, text in ticks:
-        out.append(f'   <path d="M {_number(x)} {_number(bottom)} L {_number(x)} '
-                   f'{_number(top)}" {CLIP} {GRID}/>')
-        out.append(f'   <use xlink:href="#xtick" x="{_number(x)}" y="{_number(bottom)}" '
-                   f'{TICK}/>')
-        out.append("   " + _text(x, below + ascent * FONT_SIZE, text, anchor="middle"))
+        out.append(_line(x, bottom, x, top, GRID))
+        out.append(_tick("xtick", x, bottom, _text(x, below + ascent * FONT_SIZE, text,
+                                                   anchor="middle")))
     # the axis label's top sits a label pad below the tick labels' line (ascent + descent)
     out.append("   " + _text((left + right) / 2, below + (2 * ascent + descent) * FONT_SIZE
                              + LABEL_PAD, label, anchor="middle"))
@@ -211,11 +217,9 @@ def _y_axis(ticks: list[tuple[float, str]], axes: Box) -> str:
     out = [f'   <defs>\n    <path id="ytick" d="M 0 0 L {_number(-TICK_LENGTH)} 0" {TICK}/>'
            '\n   </defs>']
     for y, text in ticks:
-        out.append(f'   <path d="M {_number(left)} {_number(y)} L {_number(right)} '
-                   f'{_number(y)}" {CLIP} {GRID}/>')
-        out.append(f'   <use xlink:href="#ytick" x="{_number(left)}" y="{_number(y)}" '
-                   f'{TICK}/>')
-        out.append("   " + _text(before, y + ascent * FONT_SIZE / 2, text, anchor="end"))
+        out.append(_line(left, y, right, y, GRID))
+        out.append(_tick("ytick", left, y, _text(before, y + ascent * FONT_SIZE / 2, text,
+                                                 anchor="end")))
     widest = max((_width(text, FONT_SIZE) for _, text in ticks), default=0.0)
     out.append("   " + _text(before - widest - LABEL_PAD - descent * FONT_SIZE,
                              (top + bottom) / 2, "boards", anchor="middle", rotate=90))
