@@ -38,9 +38,10 @@ def compute_bundle(design: Design, library: Mapping[str, ModelDef],
                    helper: bool = False) -> dict[str, Any]:
     """Results, page sections (with figures) and schematic for one design.
 
-    :param helper: draw the schematic and the spread sections in a second (forked) process
-        while this one plots the rest: a build that solves one design has a core to spare,
-        and the figures and schematic are most of a design's time.  The bundle is the same.
+    :param helper: draw the schematic in a second (forked) process while this one plots: a
+        build that solves one design has a core to spare, and in a fresh process the
+        schematic (0.35-0.5 s with its first-use costs) is nearly as long as all the figures.
+        The bundle is the same.
     """
     from docgen import pipeline
     from docgen.units import round_results
@@ -82,34 +83,19 @@ def _plot(design: Design, results: dict[str, Any], bundle: dict[str, Any],
           chosen: list[Any]) -> None:
     """``bundle["sections"]`` from the builders ``chosen``; a crash becomes an error entry."""
     try:
-        bundle["sections"] = [s for s in _sections(design, results, chosen) if s is not None]
+        bundle["sections"] = [s for builder in chosen if (s := builder(design, results))
+                              is not None]
     except Exception as exc:  # noqa: BLE001
         bundle["errors"].append(_internal_error(design, "plotting", exc))
         bundle["internal_error"] = True
 
 
-def _sections(design: Design, results: dict[str, Any], chosen: list[Any]) -> list[Any]:
-    """Each builder's section (``None`` where it has none), in the order given."""
-    return [builder(design, results) for builder in chosen]
-
-
-def _helper_share(every: list[Any]) -> list[Any]:
-    """What the helper plots besides the schematic: the spread sections (histograms are many
-    small figures); about half the drawing time of a design with them."""
-    return [b for b in every if b.__module__.endswith(".spread_sections")]
-
-
 def _helper_work() -> dict[str, Any]:
-    """In the forked helper: the schematic and the helper's share of the sections (``None``
-    for the sections if a builder crashed: the parent then plots everything itself)."""
+    """In the forked helper: the schematic's fields of the bundle."""
     design, results = _WORKER["helper"]
     part: dict[str, Any] = {"schematic": None, "schematic_problem": None}
     _draw(design, results, part)
-    try:
-        sections = _sections(design, results, _helper_share(builders()))
-    except Exception:  # noqa: BLE001 - reported by the parent's own run of the builders
-        sections = None
-    return {"part": part, "sections": sections}
+    return part
 
 
 def _preload() -> None:
@@ -124,8 +110,8 @@ def _preload() -> None:
 
 
 def _with_helper(design: Design, results: dict[str, Any], bundle: dict[str, Any]) -> bool:
-    """Plot and draw with a forked helper (see :func:`compute_bundle`); ``False`` if no
-    helper could be had (the caller then does everything itself)."""
+    """Draw the schematic in a forked helper while this process plots (see
+    :func:`compute_bundle`); ``False`` if no helper could be had (nothing done then)."""
     import multiprocessing
     import sys
     from concurrent.futures import ProcessPoolExecutor
@@ -133,30 +119,19 @@ def _with_helper(design: Design, results: dict[str, Any], bundle: dict[str, Any]
 
     if not sys.platform.startswith("linux"):
         return False  # the helper inherits the design by forking (it does not pickle)
-    every = builders()
-    shared = _helper_share(every)
-    own = [b for b in every if b not in shared]
     _preload()
     _WORKER["helper"] = (design, results)
     try:
         with ProcessPoolExecutor(1, mp_context=multiprocessing.get_context("fork")) as pool:
             future = pool.submit(_helper_work)
-            try:
-                mine: list[Any] | None = _sections(design, results, own)
-            except Exception:  # noqa: BLE001 - plotted again below, as without a helper
-                mine = None
-            helped = future.result()
+            _plot(design, results, bundle, builders())
+            bundle.update(future.result())
     except (OSError, BrokenProcessPool):
+        bundle["sections"], bundle["errors"] = [], []  # as before: the caller does it all
+        bundle.pop("internal_error", None)
         return False
     finally:
         _WORKER.pop("helper", None)
-    bundle.update(helped["part"])
-    if mine is None or helped["sections"] is None:
-        _plot(design, results, bundle, every)  # the same error entry as a run without helper
-        return True
-    by_builder = dict(zip(own, mine, strict=True)) | dict(zip(shared, helped["sections"],
-                                                                strict=True))
-    bundle["sections"] = [s for b in every if (s := by_builder[b]) is not None]
     return True
 
 
