@@ -34,9 +34,9 @@ def test_figures_are_deterministic_svg():
 
 
 def test_overlay_redrawn_on_one_canvas_equals_a_fresh_figure():
-    """The overlay reuses one figure per process; each SVG must be byte for byte what a fresh
-    ``plots.curves`` figure gives, whatever was drawn before it (wider and narrower ranges, a
-    different sweep whose older curve is blank at the ends)."""
+    """The overlay is drawn on the process's kept figure; each SVG must be byte for byte what
+    a new figure gives (``plots.fresh_figures``), whatever was drawn before it (wider and
+    narrower ranges, a different sweep whose older curve is blank at the ends)."""
     import math
 
     from docgen import plots
@@ -56,8 +56,10 @@ def test_overlay_redrawn_on_one_canvas_equals_a_fresh_figure():
         labels = (f"old{index}", f"new{index}")
         before = old["gain_db"] if old["freq_hz"] == new["freq_hz"] else [
             _interp(f, old) for f in new["freq_hz"]]
-        fresh = plots.curves(new["freq_hz"], [(labels[0], before), (labels[1], new["gain_db"])],
-                             unit="dB", ylabel="gain (dB)", log_y=False)
+        with plots.fresh_figures():
+            fresh = plots.curves(new["freq_hz"], [(labels[0], before),
+                                                  (labels[1], new["gain_db"])],
+                                 unit="dB", ylabel="gain (dB)", log_y=False)
         assert response_overlay(old, new, labels) == fresh, index
     assert math.isnan(_interp(1.0, cases[1][0]))
 
@@ -75,7 +77,7 @@ def _interp(freq, ac):
 
 def test_trend_redrawn_on_one_canvas_equals_a_fresh_figure():
     """Trends of different lengths, units, gaps and panel counts, one after another on the
-    process's reused figures: each SVG equals the same trend drawn on a new figure."""
+    process's kept figures: each SVG equals the same trend drawn on a new figure."""
     cases = [
         (["a1", "b2", "c3"], [("midband gain", "dB", [10.0, None, 12.5])]),
         ([f"r{i}" for i in range(10)],
@@ -88,5 +90,9 @@ def test_trend_redrawn_on_one_canvas_equals_a_fresh_figure():
         (["m", "n", "o", "p"], [("low corner", "Hz", [1e3, 2e3, None, 4e3]),
                                 ("output impedance", "Ω", [50.0, 60.0, 70.0, 80.0])]),
     ]
+    from docgen import plots
+
     for index, (labels, series) in enumerate(cases + cases[:2]):
-        assert trend_plot(labels, series) == trend_plot(labels, series, reuse=False), index
+        with plots.fresh_figures():
+            fresh = trend_plot(labels, series)
+        assert trend_plot(labels, series) == fresh, index

@@ -1,7 +1,7 @@
 """Figures of the history and diff pages: headline trends across revisions and the response
 curves of two revisions overlaid.  Deterministic SVG through :mod:`docgen.plots` (same style,
-same hash salt, no dates).  A history draws many of them, so each kind is drawn on one figure
-per process that is cleared and redrawn: the same bytes as a new figure, at half the cost."""
+same hash salt, no dates); like every plot, each kind is redrawn on one figure kept per process
+(the same bytes as a new figure, at about half the cost)."""
 
 from __future__ import annotations
 
@@ -60,61 +60,32 @@ def trend_series(rows: Sequence[Json], limit: int = 6) -> list[tuple[str, str, l
     return (moved + [s for s in series if s not in moved])[:limit]
 
 
-def trend_plot(labels: Sequence[str], series: Sequence[tuple[str, str, Sequence[float | None]]],
-               *, reuse: bool = True) -> str:
+def trend_plot(labels: Sequence[str], series: Sequence[tuple[str, str, Sequence[float | None]]]
+               ) -> str:
     """One small panel per figure against revision (oldest left), sharing the revision axis.
 
-    :param reuse: draw on this process's figure with as many panels (made on first use; the
-        axes and their tick objects are most of a trend's cost), else on a new one; the SVG is
-        the same either way (tests/test_history_figures.py compares them).
+    Drawn on the process's kept figure with as many panels (:func:`docgen.plots._canvas`: the
+    same SVG bytes as a new figure, without building axes and ticks again each time).
     """
     from docgen import plots
 
-    fig, axes = _trend_canvas(len(series)) if reuse else _trend_figure(len(series))
+    def setup() -> tuple[Any, list[Any]]:
+        fig, axes = plots._figure(len(series), height=1.55)
+        fig.subplots_adjust(hspace=0.55)
+        axes[-1].set_xlabel("revision (oldest left)")
+        return fig, axes
+
+    fig, axes = plots._canvas(("history trend", len(series)), setup)
     positions = list(range(len(labels)))
     for index, (ax, (metric, unit, values)) in enumerate(zip(axes, series, strict=True)):
-        _clear(ax)
         points = [(x, v) for x, v in zip(positions, values, strict=True) if v is not None]
         ax.plot([p[0] for p in points], [p[1] for p in points], marker="o", markersize=3.5,
                 color=plots.CURVE_COLOURS[index % len(plots.CURVE_COLOURS)])
         ax.yaxis.set_major_formatter(plots._eng(unit))
         ax.set_title(metric, fontsize=8.5, loc="left")
-        ax.relim()
-        ax.autoscale_view()
     axes[-1].set_xticks(positions)
     axes[-1].set_xticklabels(labels, rotation=30, ha="right", fontsize=7.5)
-    return _svg(fig) if reuse else plots._to_svg(fig)
-
-
-def _trend_figure(panels: int) -> tuple[Any, list[Any]]:
-    from docgen import plots
-
-    fig, axes = plots._figure(panels, height=1.55)
-    fig.subplots_adjust(hspace=0.55)
-    axes[-1].set_xlabel("revision (oldest left)")
-    return fig, axes
-
-
-@functools.cache
-def _trend_canvas(panels: int) -> tuple[Any, list[Any]]:
-    return _trend_figure(panels)
-
-
-def _clear(ax: Any) -> None:
-    """Take the curves and the legend off a reused axes (what is drawn anew each time)."""
-    for line in list(ax.lines):
-        line.remove()
-    if ax.get_legend() is not None:
-        ax.get_legend().remove()
-
-
-def _svg(fig: Any) -> str:
-    """The SVG of a figure that stays open for reuse (``plots._to_svg`` closes it)."""
-    import io
-
-    buffer = io.StringIO()
-    fig.savefig(buffer, format="svg", metadata={"Date": None, "Creator": "docgen"})
-    return buffer.getvalue()
+    return plots._to_svg(fig)
 
 
 def response_overlay(old_ac: Mapping[str, Any] | None, new_ac: Mapping[str, Any] | None,
@@ -128,6 +99,8 @@ def response_overlay(old_ac: Mapping[str, Any] | None, new_ac: Mapping[str, Any]
         return None
     import numpy as np
 
+    from docgen import plots
+
     freq = np.asarray(new_ac["freq_hz"], dtype=float)
     old_f = np.asarray(old_ac["freq_hz"], dtype=float)
     old_gain = np.asarray(old_ac["gain_db"], dtype=float)
@@ -136,43 +109,8 @@ def response_overlay(old_ac: Mapping[str, Any] | None, new_ac: Mapping[str, Any]
     else:
         before = np.interp(np.log10(freq), np.log10(old_f), old_gain, left=math.nan,
                            right=math.nan)
-    return _overlay_canvas().draw(freq, [(labels[0], before), (labels[1], new_ac["gain_db"])])
-
-
-class _Canvas:
-    """The overlay figure, made once per process and redrawn for each pair of revisions.
-
-    Building a figure's axes and tick objects is about half the cost of drawing an overlay,
-    and a history has one overlay per diff page.  Removing the curves and the legend and
-    re-limiting the axes gives the same SVG bytes as a fresh ``plots.curves(..., unit="dB",
-    ylabel="gain (dB)", log_y=False)`` figure; tests/test_history_figures.py compares the two.
-    """
-
-    def __init__(self) -> None:
-        from docgen import plots
-
-        self.plots = plots
-        self.figure, (self.axes,) = plots._figure(1)
-        plots._log_x(self.axes, "Hz")
-        self.axes.yaxis.set_major_formatter(plots._eng("dB"))
-        self.axes.set_ylabel("gain (dB)")
-        self.axes.set_xlabel("frequency")
-
-    def draw(self, freq: Any, series: Sequence[tuple[str, Any]]) -> str:
-        """The SVG of ``series`` (name, gain in dB) against ``freq`` (Hz)."""
-        ax, colours = self.axes, self.plots.CURVE_COLOURS
-        _clear(ax)
-        for index, (name, values) in enumerate(series):
-            ax.plot(freq, values, color=colours[index % len(colours)], label=name)
-        ax.relim()
-        ax.autoscale_view()
-        ax.legend(loc="best", fontsize=7.5, frameon=False)
-        return _svg(self.figure)
-
-
-@functools.cache
-def _overlay_canvas() -> _Canvas:
-    return _Canvas()
+    return plots.curves(freq, [(labels[0], before), (labels[1], new_ac["gain_db"])],
+                        unit="dB", ylabel="gain (dB)", log_y=False)
 
 
 def _has_curve(ac: Mapping[str, Any] | None) -> bool:
