@@ -72,3 +72,41 @@ def test_paths_outside_the_prefetched_folder_still_come_from_git(repo_and_commit
     assert repo.read_many(commits[3], ["outside.md"]) == {"outside.md": b"elsewhere, edited\n"}
     assert repo.read_many(commits[0], ["designs/picture.png"]) == {
         "designs/picture.png": b"not a page\n"}  # not prefetched (suffix), read from git
+
+
+def test_kept_answers_are_gits_own_and_a_second_repo_at_that_commit_asks_git_no_log(
+        repo_and_commits, monkeypatch):
+    """Repo.keep_answers: logs and the commit order saved by commit id, given back as git gave
+    them; after a new commit they are asked again (another id)."""
+    script, commits = repo_and_commits
+    store: dict[str, dict] = {}
+
+    def ask(repo: Repo) -> tuple:
+        return (repo.log_follow("designs/sub/deeper/b.md"), repo.order(),
+                repo.log_paths(["designs/library/parts.md"]))
+
+    fresh = ask(Repo(script.root))
+    first = Repo(script.root)
+    first.keep_answers(store.get, store.__setitem__)
+    assert ask(first) == fresh
+    assert list(store) == [commits[-1]]
+    assert [c.path for c in fresh[0]] == ["designs/sub/deeper/b.md"] + ["designs/a.md"] * 2
+
+    real_run = subprocess.run
+
+    def only_head(args, *rest, **options):
+        assert "log" not in args and "rev-list" not in args, f"git was asked: {args}"
+        return real_run(args, *rest, **options)
+
+    monkeypatch.setattr(subprocess, "run", only_head)
+    second = Repo(script.root)
+    second.keep_answers(store.get, store.__setitem__)
+    assert ask(second) == fresh
+    monkeypatch.setattr(subprocess, "run", real_run)
+
+    script.write("designs/sub/deeper/b.md", "changed again\n")
+    newest = script.commit("edit b again")
+    third = Repo(script.root)
+    third.keep_answers(store.get, store.__setitem__)
+    assert third.log_follow("designs/sub/deeper/b.md")[0].sha == newest
+    assert set(store) == {commits[-1], newest}

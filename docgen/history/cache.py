@@ -67,6 +67,16 @@ class ResultsCache:
         data = self._read(self._file("figures", key))
         return data.get("svg") if data is not None else None
 
+    def git_answers(self, commit: str) -> dict[str, Any] | None:
+        """What git answered about the history up to ``commit`` (logs, commit order), as
+        :meth:`docgen.history.git.Repo.keep_answers` saved it, or ``None``."""
+        return self._read(self._file("git", commit)) if self.folder is not None else None
+
+    def put_git_answers(self, commit: str, answers: dict[str, Any]) -> None:
+        """Save git's answers about the history up to ``commit`` (they never change)."""
+        if self.folder is not None:
+            self._write(self._file("git", commit), answers)
+
     def put_figure(self, key: str, svg: str) -> None:
         """Store a figure drawn from content that ``key`` hashes."""
         if self.folder is not None:

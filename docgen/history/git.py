@@ -70,8 +70,9 @@ class Commit:
 class Repo:
     """A git work tree, addressed by its top-level folder.
 
-    A Repo lives for one build or one command: the commit order and the logs of library pages
-    are asked of git once per Repo, so make a new one after committing.
+    A Repo lives for one build or one command: the commit order and the logs are asked of git
+    once per Repo, for the commit ``HEAD`` named when first asked, so make a new one after
+    committing.  With :meth:`keep_answers` they are kept across builds too, by that commit id.
     """
 
     def __init__(self, root: Path):
@@ -82,6 +83,8 @@ class Repo:
         self._memo: dict[tuple[str, ...], object] = {}
         self._listings: dict[str, dict[str, dict[str, str]]] = {}  # rev -> folder -> path: id
         self._blobs: dict[str, bytes] = {}
+        self._store: tuple[Callable[[str], dict | None], Callable[[str, dict], None]] | None = None
+        self._answers: dict[str, Any] | None = None
 
     @classmethod
     def find(cls, start: Path | str) -> Repo | None:
@@ -108,9 +111,24 @@ class Repo:
 
     def has_commits(self) -> bool:
         """True once the repository has a ``HEAD`` commit (remembered once true)."""
-        if not self._facts.get("commits"):
-            self._facts["commits"] = self.resolve("HEAD") is not None
-        return self._facts["commits"]
+        return self.head() is not None
+
+    def head(self) -> str | None:
+        """The commit id ``HEAD`` named when first asked (``None`` before the first commit)."""
+        if ("head",) not in self._memo:
+            found = self.resolve("HEAD")
+            if found is None:
+                return None  # asked again next time: a first commit may come
+            self._memo["head",] = found
+        return str(self._memo["head",])
+
+    def keep_answers(self, load: Callable[[str], dict | None],
+                     save: Callable[[str, dict], None]) -> None:
+        """Keep the answers that depend only on the commit ``HEAD`` names (the logs, the commit
+        order) in a store by that commit's id: ``load(id)`` gives what was saved, ``save(id,
+        answers)`` saves.  A rebuild at the same commit then runs none of those git commands
+        (on a long history ``git log --follow`` takes tens of milliseconds per design)."""
+        self._store = (load, save)
 
     def is_shallow(self) -> bool:
         """True for a shallow clone (its history is cut off, so it cannot be shown)."""
@@ -183,7 +201,9 @@ class Repo:
         and these are such commits."""
         def read() -> bool:
             spec = [] if folder in ("", ".") else ["--", folder]
-            self.prefetch(str(self.run("rev-list", "HEAD", *spec)).split(), folder, suffix)
+            revs = self._kept(("commits", folder), lambda head: str(self.run(
+                "rev-list", head, *spec)).split())
+            self.prefetch(revs, folder, suffix)
             return True
 
         self._remember(("prefetch", folder, suffix), read)
@@ -218,9 +238,9 @@ class Repo:
 
     def order(self) -> dict[str, int]:
         """Position of every commit reachable from ``HEAD``, newest first (topological)."""
-        return dict(self._remember(("order",), lambda: {
+        return dict(self._kept(("order",), lambda head: {
             sha: i for i, sha in enumerate(str(self.run("rev-list", "--topo-order",
-                                                        "HEAD")).split())}))
+                                                        head)).split())}))
 
     def _remember(self, key: tuple[str, ...], compute: Callable[[], Any]) -> Any:
         """``compute()``, asked of git once per Repo (see the class docstring)."""
@@ -228,13 +248,32 @@ class Repo:
             self._memo[key] = compute()
         return self._memo[key]
 
+    def _kept(self, key: tuple[str, ...], compute: Callable[[str], Any],
+              encode: Callable[[Any], Any] = lambda v: v,
+              decode: Callable[[Any], Any] = lambda v: v) -> Any:
+        """``compute(head)`` for the commit ``HEAD`` names, once per Repo and, with
+        :meth:`keep_answers`, once per commit id."""
+        def fetch() -> Any:
+            head = self.head()
+            if head is None or self._store is None:
+                return compute(head or "HEAD")
+            if self._answers is None:
+                self._answers = dict(self._store[0](head) or {})
+            name = "\0".join(key)
+            if name not in self._answers:
+                self._answers[name] = encode(compute(head))
+                self._store[1](head, self._answers)
+            return decode(self._answers[name])
+
+        return self._remember(key, fetch)
+
     # -- history -------------------------------------------------------------------------
 
     def log_follow(self, path: str) -> list[Commit]:
         """Every commit that changed ``path``, newest first, following renames."""
-        out = str(self.run("log", "--follow", "--name-status", "-M", f"--format={_LOG_FORMAT}",
-                           "HEAD", "--", path))
-        return _parse_log(out)
+        return list(self._kept(("log_follow", path), lambda head: _parse_log(str(self.run(
+            "log", "--follow", "--name-status", "-M", f"--format={_LOG_FORMAT}", head, "--",
+            path))), _commits_json, _commits))
 
     def log_paths(self, paths: list[str]) -> list[Commit]:
         """Every commit that changed any of ``paths`` (no rename following), newest first.
@@ -243,10 +282,10 @@ class Repo:
         """
         if not paths:
             return []
-        return list(self._remember(("log_paths", *sorted(paths)), lambda: [
+        return list(self._kept(("log_paths", *sorted(paths)), lambda head: [
             c for c in _parse_log(str(self.run("log", "--name-status", "--no-renames",
-                                               f"--format={_LOG_FORMAT}", "HEAD", "--", *paths)))
-            if c.path in paths]))
+                                               f"--format={_LOG_FORMAT}", head, "--", *paths)))
+            if c.path in paths], _commits_json, _commits))
 
     def changed_files(self, rev_a: str, rev_b: str | None, folder: str) -> list[tuple[str, str]]:
         """``(old path, new path)`` of files that differ between two revisions under ``folder``.
@@ -269,6 +308,14 @@ class Repo:
             pairs.append(("" if status == "A" else path, "" if status == "D" else path))
             i += 2
         return pairs
+
+
+def _commits_json(commits: list[Commit]) -> list[dict[str, str | None]]:
+    return [{k: v for k, v in c.to_json().items() if k != "short"} for c in commits]
+
+
+def _commits(data: list[dict[str, str | None]]) -> list[Commit]:
+    return [Commit(**item) for item in data]  # type: ignore[arg-type]
 
 
 def _parse_log(out: str) -> list[Commit]:

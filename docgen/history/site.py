@@ -26,6 +26,8 @@ def provide(site: ProviderInput) -> Contribution:
     """History and diff pages for every design in the site."""
     repo, root = open_repo(site.record.root)
     solver = RevisionSolver(ResultsCache(site.cache_dir))  # None (--no-cache): memory only
+    if repo is not None:  # a rebuild at the same commit asks git for no log again
+        repo.keep_answers(solver.cache.git_answers, solver.cache.put_git_answers)
     contribution = Contribution()
     paths = {rel: rel if root in ("", ".") else f"{root.rstrip('/')}/{rel}" for rel in site.designs}
     _seed(site, solver)
