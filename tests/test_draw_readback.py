@@ -12,6 +12,8 @@ from __future__ import annotations
 import schemdraw
 import schemdraw.elements as elm
 from draw_circuits import design, part
+from hypothesis import given, settings
+from hypothesis import strategies as st
 
 from docgen.draw import readback, symbols
 
@@ -151,3 +153,24 @@ def test_aspect_ratio() -> None:
     d = _drawing()
     _resistor(d, "R1", (0, 0), (60, 0))
     assert any("aspect" in p for p in readback.readability(readback.geometry(d)))
+
+
+@settings(max_examples=60, deadline=None)
+@given(st.integers(1, 40).flatmap(lambda n: st.tuples(
+    st.just(n), st.lists(st.tuples(st.integers(0, n - 1), st.integers(0, n - 1)), max_size=60))))
+def test_components_agree_with_scipy(graph):
+    # scipy's connected_components is the reference for the drawing's own union–find
+    import numpy as np
+    from scipy.sparse import coo_matrix
+    from scipy.sparse.csgraph import connected_components
+
+    from docgen.draw.readback import _components
+
+    count, links = graph
+    ours = _components(count, links)
+    rows = np.array([a for a, _ in links] or [0])
+    cols = np.array([b for _, b in links] or [0])
+    _, theirs = connected_components(coo_matrix((np.ones(len(rows)), (rows, cols)),
+                                                shape=(count, count)), directed=False)
+    pairs = [(i, j) for i in range(count) for j in range(count)]
+    assert all((ours[i] == ours[j]) == (theirs[i] == theirs[j]) for i, j in pairs)

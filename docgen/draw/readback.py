@@ -5,7 +5,7 @@ wire segments (``Line`` start and end), the leads of two-terminal symbols (``sta
 ``iend``→``end``), each part's terminal anchors, port symbols (ground, supply arrows and name
 flags: global names, read from the text drawn on them), dots, and every text's box.
 
-Connectivity is the connected components (scipy) of a graph over snapped coordinates: segment
+Connectivity is the connected components (union–find) of a graph over snapped coordinates: segment
 end points join; a point lying inside another segment joins it (a T-junction, and so also a
 collinear overlap); segments that merely cross do not join.  Readability checks use bounding
 boxes with a small margin.
@@ -177,10 +177,6 @@ def lying_inside(points: list[Point], segments: list[Segment]) -> list[tuple[int
 
 def connectivity(geo: Geometry) -> list[set[tuple[str, str]]]:
     """The drawing's nets: sets of (part, terminal) joined by its conductors and port names."""
-    import numpy as np
-    from scipy.sparse import coo_matrix
-    from scipy.sparse.csgraph import connected_components
-
     segments = geo.wires + [s for _, s in geo.leads]
     points = sorted({p for s in segments for p in s} | set(geo.pins.values())
                     | {p for _, p in geo.ports})
@@ -189,14 +185,28 @@ def connectivity(geo: Geometry) -> list[set[tuple[str, str]]]:
     links += [(i, index[segments[j][0]]) for i, j in lying_inside(points, segments)]
     named: dict[str, Point] = {}
     links += [(index[named.setdefault(name, p)], index[p]) for name, p in geo.ports]
-    rows = np.array([a for a, _ in links] or [0], dtype=int)
-    cols = np.array([b for _, b in links] or [0], dtype=int)
-    graph = coo_matrix((np.ones(len(rows)), (rows, cols)), shape=(len(points), len(points)))
-    _, label = connected_components(graph, directed=False)
+    label = _components(len(points), links)
     groups: dict[int, set[tuple[str, str]]] = {}
     for key, point in geo.pins.items():
-        groups.setdefault(int(label[index[point]]), set()).add(key)
+        groups.setdefault(label[index[point]], set()).add(key)
     return sorted(groups.values(), key=lambda g: sorted(g))
+
+
+def _components(count: int, links: list[tuple[int, int]]) -> list[int]:
+    """The connected component of each of ``count`` nodes joined by ``links`` (union–find
+    with path halving: a drawing has a few hundred points, and scipy's graph routines would
+    cost a 0.3 s import in every process that draws)."""
+    parent = list(range(count))
+
+    def root(node: int) -> int:
+        while parent[node] != node:
+            parent[node] = parent[parent[node]]
+            node = parent[node]
+        return node
+
+    for a, b in links:
+        parent[root(a)] = root(b)
+    return [root(node) for node in range(count)]
 
 
 def netlist_nets(design: Design) -> list[set[tuple[str, str]]]:
