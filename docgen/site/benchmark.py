@@ -78,8 +78,16 @@ def measure_builds(designs_dir: Path | str = "designs", jobs: int | None = None
 
 def main(argv: list[str] | None = None) -> int:
     """Print the build timings of a designs folder (default ``designs``)."""
-    args = sys.argv[1:] if argv is None else argv
-    timings = measure_builds(args[0] if args else "designs")
+    import argparse
+
+    parser = argparse.ArgumentParser(prog="python -m docgen.site.benchmark",
+                                     description="Time a cold build, a no-change rebuild and "
+                                     "two one-design rebuilds of a copy of a designs folder.")
+    parser.add_argument("designs", nargs="?", default="designs", help="the designs folder")
+    args = parser.parse_args(sys.argv[1:] if argv is None else argv)
+    if not Path(args.designs).is_dir():
+        parser.error(f"no designs folder at '{args.designs}'")
+    timings = measure_builds(args.designs)
     print(f"{'site build':<20} {'seconds':>8} {'solved':>7} {'reused':>7} {'files':>6}")
     for name, row in timings.items():
         print(f"{name:<20} {row['seconds']:>8.2f} {row['solved']:>7} {row['reused']:>7} "
