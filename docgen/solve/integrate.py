@@ -115,10 +115,13 @@ class Stepper:
     :param overrides: ``(part, value name) -> (S,)`` values per sample (rarely needed).
     :param method: ``trapezoidal`` or ``bdf2``.
     :param tolerance: the local error allowed per step on a node voltage (V).
+    :param start: the state ``z = [x, w]`` at t = 0, ``(S, M + poles)``, where a better one
+        than the operating point is known (default: the operating point).
     """
 
     def __init__(self, network: SmallSignal, samples: int, stimulus: Stimulus | None,
-                 method: str = "trapezoidal", tolerance: float = 1e-4):
+                 method: str = "trapezoidal", tolerance: float = 1e-4,
+                 start: Array | None = None):
         if method not in METHODS:
             raise ValueError(f"unknown integration rule '{method}'")
         solution = network.solution
@@ -149,7 +152,8 @@ class Stepper:
         self.t = 0.0
         x0 = np.repeat(solution.x[:1], samples, axis=0)
         self.state: dict[str, Array] = {}
-        self.history = _History(self._with_poles(x0), np.zeros((samples, self._width)))
+        z0 = self._with_poles(x0) if start is None else np.array(start, dtype=float)
+        self.history = _History(z0, np.zeros((samples, self._width)))
         self.steps = 0
         self.rejected = 0
         self.newton_iterations = 0

@@ -6,8 +6,8 @@ Public API::
     run.grid            # (N, S, M) unknowns over the last period, at t = (j + 1)·T/N
     run.reached, run.change, run.periods, run.method
 
-Start: the operating point with every capacitor charged at its bias voltage; the sine starts at
-phase 0.  Each period is marched on a grid of N = :data:`POINTS` points (sub-steps as the error
+Start: the small-signal steady state at t = 0 (:func:`small_signal_start`; the bare operating
+point for a sample driven past its linear range); the sine starts at phase 0.  Each period is marched on a grid of N = :data:`POINTS` points (sub-steps as the error
 control needs), so the last period is sampled uniformly and coherently for the FFT.  Steady
 state is declared per sample when no net moved more than :data:`STEADY_CHANGE` of the largest
 peak-to-peak of any net between one period and the next (measured, never assumed); the run
@@ -28,6 +28,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from docgen.solve import mna
 from docgen.solve.integrate import METHODS, Stepper, run_grid
 from docgen.solve.linearise import SmallSignal
 
@@ -38,6 +39,9 @@ POINTS = 128
 MIN_PERIODS = 2
 MAX_PERIODS = 40
 STEADY_CHANGE = 1e-3
+#: a sample starts from its small-signal steady state when its linear peak on every node is
+#: within this share of the supply span (see :func:`small_signal_start`)
+LINEAR_SHARE = 0.5
 #: a net whose point-to-point alternating part exceeds this share of its peak-to-peak rings
 RINGING = 1e-3
 
@@ -97,7 +101,8 @@ def steady_state(network: SmallSignal, amplitudes: Array, frequency: float,
     def drive(t: float) -> Array:
         return amplitudes * math.sin(omega * t)
 
-    stepper = Stepper(network, len(amplitudes), drive, method=method, tolerance=tolerance)
+    stepper = Stepper(network, len(amplitudes), drive, method=method, tolerance=tolerance,
+                      start=small_signal_start(network, amplitudes, frequency))
     nets = len(network.solution.circuit.nets)
     period = 1.0 / frequency
     previous: Array | None = None
@@ -123,6 +128,41 @@ def steady_state(network: SmallSignal, amplitudes: Array, frequency: float,
         previous = grid
     return PeriodicRun(network, grid, frequency, amplitudes, reached, change, count, stepper.method,
                        stepper.steps, stepper.rejected)
+
+
+def small_signal_start(network: SmallSignal, amplitudes: Array, frequency: float
+                       ) -> Array | None:
+    """The state at t = 0 of the small-signal steady state: z_op + A·Im(Ẑ) per amplitude A.
+
+    The drive A·sin(ωt) = Im(A·e^(jωt)) gives x(t) = x_op + A·Im(Ẑ·e^(jωt)) in the linearised
+    network, Ẑ its response to a unit phasor on the signal's branch.  Starting there instead of
+    at the bare operating point leaves no start-up transient in a linear stage (a coupling
+    capacitor's slow recharge would otherwise take many periods to die out) and a smaller one
+    in a driven-hard stage; steady state is still measured, never assumed.  ``None`` without a
+    signal source.
+    """
+    from docgen.solve import phasor
+
+    signals = [d for d in network.solution.circuit.devices if d.kind == "signal"]
+    if not signals:
+        return None
+    rhs = network.unit(network.branch_row(signals[0].name))[:1]
+    try:
+        response = phasor.solve(network.G[:1], network.C[:1], np.array([frequency]), rhs)
+    except np.linalg.LinAlgError:
+        return None
+    shape = np.imag(response[0, 0])
+    if not np.all(np.isfinite(shape)):
+        return None
+    amplitudes = np.asarray(amplitudes, dtype=float)
+    # a sample driven past the rails is far from its linear response: it starts at the
+    # operating point as before (a circuit of linear parts is linear at any amplitude)
+    nodes = network.solution.problem.layout.node_count
+    swing = amplitudes * np.max(np.abs(response[0, 0, :nodes]), initial=0.0)
+    linear = (swing <= LINEAR_SHARE * _supply_span(network)) | all(
+        d.kind in mna.LINEAR_KINDS for d in network.solution.circuit.devices)
+    operating_point = Stepper(network, 1, None).history.z[0]
+    return operating_point[None, :] + np.where(linear, amplitudes, 0.0)[:, None] * shape[None, :]
 
 
 def _supply_span(network: SmallSignal) -> float:
