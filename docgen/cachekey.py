@@ -8,10 +8,12 @@ cached with the results.
 
 from __future__ import annotations
 
+import functools
 import hashlib
 import json
 from collections.abc import Iterable, Mapping
 from dataclasses import fields, is_dataclass
+from pathlib import Path
 from typing import Any
 
 from docgen import __version__
@@ -26,6 +28,25 @@ SOLVE_BLOCK_TAGS = frozenset({"circuit", "models", "bench", "require", "estimate
 #: of it that are read go in line by line) and the blocks (filtered, then added as file lines).
 _LEFT_OUT = frozenset({"source", "blocks"})
 _SELF = "<this design>"
+
+
+CODE_SUFFIXES = frozenset({".py", ".md", ".json", ".html", ".css", ".js", ".svg"})
+
+
+@functools.lru_cache(maxsize=1)
+def code_fingerprint() -> str:
+    """sha256 over docgen's own files, so a result made by other code is never reused.
+
+    The version number alone does not change while docgen is developed between releases; the
+    files do.  Hashing the installed package takes milliseconds.
+    """
+    root = Path(__file__).resolve().parent
+    digest = hashlib.sha256()
+    for path in sorted(root.rglob("*")):
+        if path.suffix in CODE_SUFFIXES and "__pycache__" not in path.parts and path.is_file():
+            digest.update(path.relative_to(root).as_posix().encode() + b"\0")
+            digest.update(hashlib.sha256(path.read_bytes()).digest())
+    return digest.hexdigest()
 
 
 def cache_key(design_bytes: bytes, library_bytes: Iterable[bytes] = (), extra: str = "") -> str:

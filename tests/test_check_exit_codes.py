@@ -209,3 +209,31 @@ def test_hazardous_supply_is_a_prominent_warning(tmp_path: Path, capsys) -> None
     code, out = _check(tmp_path, capsys, "--json")
     (caution,) = json.loads(out)["designs"][0]["cautions"]
     assert caution["severity"] == "hazard" and "licensed practice" in caution["note"]
+
+
+def test_gate_results_are_kept_until_the_design_changes(tmp_path: Path,
+                                                          capsys: pytest.CaptureFixture,
+                                                          monkeypatch: pytest.MonkeyPatch):
+    # A second check of an unchanged design takes its gate result from the cache (solving is
+    # made impossible here) and prints the same; a changed limit is solved again.
+    from docgen.check import gate
+
+    folder = tmp_path / "designs"
+    folder.mkdir()
+    page = _page(folder, "d.md", DIVIDER, "review", "6 V .. 7 V")
+    cache = ["--cache", str(tmp_path / "cache")]
+    first = _check(folder, capsys, *cache)
+    assert first[0] == 1 and "fails" in first[1]
+
+    def refuse(*_args, **_kwargs):
+        raise AssertionError("solved although nothing changed")
+
+    monkeypatch.setattr(gate, "check_design", refuse)
+    assert _check(folder, capsys, *cache) == first
+    page.write_text(page.read_text(encoding="utf-8").replace("6 V .. 7 V", "4 V .. 6 V"),
+                    encoding="utf-8")
+    with pytest.raises(AssertionError, match="solved although"):
+        _check(folder, capsys, *cache)
+    monkeypatch.undo()
+    assert _check(folder, capsys, *cache)[0] == 0
+    assert _check(folder, capsys, "--no-cache")[0] == 0

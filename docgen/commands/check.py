@@ -61,6 +61,12 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
                         help="a folder of library pages to use when checking single files "
                         f"(default: {DEFAULT_ROOT}/ if it exists); may be repeated")
     parser.add_argument("--json", action="store_true", help="print one JSON document")
+    parser.add_argument("--cache", metavar="FOLDER", default=None,
+                        help="where to keep each design's gate result between runs, so only "
+                        f"changed designs are solved (default: .docgen-cache beside "
+                        f"{DEFAULT_ROOT}/ when it exists)")
+    parser.add_argument("--no-cache", action="store_true",
+                        help="solve every design afresh and keep nothing")
     parser.add_argument("--notes", action="store_true",
                         help="also print notes: hand estimates beside the solved values, "
                         "parts with no rating or tolerance to check")
@@ -113,15 +119,24 @@ def _unique(diagnostics: list[Diagnostic]) -> list[Diagnostic]:
 
 
 _PENDING: list[tuple[Record, Any]] = []  # what forked workers check, by index
+_CACHE: list[Any] = [None]  # the gate cache of this run (set before the workers fork)
 
 
 def _gate_at(index: int) -> Any:
-    """The gate of one design, with the changed-since-approval finding added (both read only
-    this design, so the workers share them out: the approval check reads git history)."""
+    """The gate of one design (from the cache when its inputs are unchanged), with the
+    changed-since-approval finding added (it reads git history, and is never cached; both
+    read only this design, so the workers share them out)."""
     from docgen.check.gate import approval_problem, check_design
 
     record, design = _PENDING[index]
-    gate = check_design(design, record.models_for(design))
+    library = record.models_for(design)
+    cache = _CACHE[0]
+    key = cache.key(design, library) if cache is not None else None
+    gate = cache.get(key) if cache is not None else None
+    if gate is None:
+        gate = check_design(design, library)
+        if cache is not None:
+            cache.put(key, gate)
     changed = approval_problem(design, record.root if Path(record.root).is_dir()
                                else str(Path(record.root).parent))
     if changed is not None:  # an approved design changed since approval: exit 1
@@ -163,6 +178,18 @@ def _expected_cost(design: Any) -> int:
     return 1 + approved + sum(_COSTS.get(name, 0) for name in sections_for(design))
 
 
+def _gate_cache(args: argparse.Namespace) -> Any:
+    """The run's gate cache (``None`` with ``--no-cache``, or with no folder to keep it in)."""
+    from docgen.check.gate_cache import GateCache
+
+    if getattr(args, "no_cache", False):
+        return None
+    folder = getattr(args, "cache", None)
+    if folder is None and Path(DEFAULT_ROOT).is_dir():
+        folder = Path(DEFAULT_ROOT).resolve().parent / ".docgen-cache"
+    return GateCache(Path(folder)) if folder is not None else None
+
+
 def check_designs(check_run: CheckRun, args: argparse.Namespace) -> int:
     """Check each readable design further; return the exit code this adds (0, 1 or 2).
 
@@ -175,7 +202,12 @@ def check_designs(check_run: CheckRun, args: argparse.Namespace) -> int:
 
     code = 0
     added: list[Diagnostic] = []
-    for gate in _gates(check_run.designs):
+    _CACHE[0] = _gate_cache(args)
+    try:
+        gates = _gates(check_run.designs)
+    finally:
+        _CACHE[0] = None
+    for gate in gates:
         added += gate.diagnostics
         check_run.notes += gate.notes
         check_run.reports.append(gate.report)

@@ -28,7 +28,7 @@ def _matplotlib_version() -> str:
 def figure_key(name: str, payload: Any) -> str:
     """The cache key of figure ``name`` drawn from ``payload``: the payload, docgen's code and
     matplotlib's version."""
-    from docgen.site.cache import code_fingerprint
+    from docgen.cachekey import code_fingerprint
 
     text = json.dumps([name, payload, __version__, code_fingerprint(), _matplotlib_version()],
                       sort_keys=True, default=str)

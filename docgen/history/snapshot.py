@@ -146,7 +146,7 @@ def content_key(design: Design, library: Mapping[str, ModelDef]) -> str:
     it, so a commit that changed only prose is not solved again) and docgen itself (its version
     and the fingerprint of its files, as the site build's cache uses: results made by other
     code are never reused)."""
-    from docgen.site.cache import code_fingerprint
+    from docgen.cachekey import code_fingerprint
 
     return design_key(design, library, extra=f"history\0{code_fingerprint()}", with_path=False)
 

@@ -16,9 +16,9 @@ from dataclasses import dataclass, field, replace
 from pathlib import Path
 from typing import Any
 
-from docgen.cachekey import design_key
+from docgen.cachekey import code_fingerprint, design_key
 from docgen.diagnostics import Diagnostic, Span
-from docgen.site.cache import BundleCache, code_fingerprint
+from docgen.site.cache import BundleCache
 from docgen.site.compute import compute_bundle, compute_in_worker, init_worker
 from docgen.site.record_view import PageEntry, RecordView, read_record
 

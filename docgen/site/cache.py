@@ -11,32 +11,13 @@ never leaves a half-written bundle behind.
 
 from __future__ import annotations
 
-import hashlib
 import json
 import os
 import tempfile
-from functools import lru_cache
 from pathlib import Path
 from typing import Any
 
 Bundle = dict[str, Any]
-CODE_SUFFIXES = frozenset({".py", ".md", ".json", ".html", ".css", ".js", ".svg"})
-
-
-@lru_cache(maxsize=1)
-def code_fingerprint() -> str:
-    """sha256 over docgen's own files, so a bundle made by other code is never reused.
-
-    The version number alone does not change while docgen is developed between releases; the
-    files do.  Hashing the installed package takes milliseconds.
-    """
-    root = Path(__file__).resolve().parent.parent
-    digest = hashlib.sha256()
-    for path in sorted(root.rglob("*")):
-        if path.suffix in CODE_SUFFIXES and "__pycache__" not in path.parts and path.is_file():
-            digest.update(path.relative_to(root).as_posix().encode() + b"\0")
-            digest.update(hashlib.sha256(path.read_bytes()).digest())
-    return digest.hexdigest()
 
 
 class BundleCache:

@@ -6,14 +6,14 @@ Public API::
     run.grid            # (N, S, M) unknowns over the last period, at t = (j + 1)·T/N
     run.reached, run.change, run.periods, run.method
 
-Start: the small-signal steady state at t = 0 (:func:`small_signal_start`; the bare operating
-point for a sample driven past its linear range); the sine starts at phase 0.  Each period is marched on a grid of N = :data:`POINTS` points (sub-steps as the error
-control needs), so the last period is sampled uniformly and coherently for the FFT.  Steady
-state is declared per sample when no net moved more than :data:`STEADY_CHANGE` of the largest
-peak-to-peak of any net between one period and the next (measured, never assumed); the run
-stops when every sample is steady (after at least :data:`MIN_PERIODS`) or after
-:data:`MAX_PERIODS`, and says which; a caller may mark samples whose answer is already decided
-(``decided``) so the run need not wait for them.
+Start: the small-signal steady state at t = 0 (:func:`small_signal_start`; the bare operating point
+for a sample driven past its linear range); the sine starts at phase 0.  Each period is marched on
+a grid of N = :data:`POINTS` points (sub-steps as the error control needs), so the last period is
+sampled uniformly and coherently for the FFT.  Steady state is declared per sample when no net
+moved more than :data:`STEADY_CHANGE` of the largest peak-to-peak of any net between one period and
+the next (measured, never assumed); the run stops when every sample is steady (after at least
+:data:`MIN_PERIODS`) or after :data:`MAX_PERIODS`, and says which; a caller may mark samples whose
+answer is already decided (``decided``) so the run need not wait for them.
 
 Integration rule: trapezoidal; if its tell-tale ringing (energy at the grid's Nyquist rate,
 alternating from point to point) appears in a period, the run switches to BDF2 (Gear) and
