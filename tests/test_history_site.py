@@ -125,3 +125,32 @@ def test_shallow_clone_builds_and_says_history_is_not_available(built, tmp_path)
     assert not list((out / "stages/ce-stage.files").glob("diff-*.html"))
     design = (out / "stages/ce-stage.html").read_text(encoding="utf-8")
     assert "not available" in design
+
+
+def test_rebuild_takes_each_unchanged_history_as_kept(built, tmp_path, monkeypatch):
+    # A rebuild at the same commits reads no revision again (each design's history pages are
+    # kept under the key of what they were made from) and writes the same bytes as a build
+    # whose cache holds no kept pages.
+    import shutil
+
+    from docgen.history import timeline
+
+    script, _, site = built
+    cache = script.root / ".docgen-cache"
+    assert list((cache / "history" / "pages").rglob("*.json")), "the first build kept none"
+
+    def no_reading(*args, **kwargs):
+        raise AssertionError("an unchanged history must not be read again")
+
+    monkeypatch.setattr(timeline, "revision_snapshots", no_reading)
+    monkeypatch.setattr("docgen.history.site.revision_snapshots", no_reading)
+    kept = tmp_path / "kept"
+    site_build(script.root, kept)
+    monkeypatch.undo()
+    shutil.rmtree(cache / "history" / "pages")
+    fresh = tmp_path / "fresh"
+    site_build(script.root, fresh)
+    files = sorted(p.relative_to(fresh) for p in fresh.rglob("*") if p.is_file())
+    assert files == sorted(p.relative_to(kept) for p in kept.rglob("*") if p.is_file())
+    for relative in files:
+        assert (kept / relative).read_bytes() == (fresh / relative).read_bytes(), relative

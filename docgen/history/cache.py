@@ -77,6 +77,16 @@ class ResultsCache:
         if self.folder is not None:
             self._write(self._file("git", commit), answers)
 
+    def page_memo(self, key: str) -> dict[str, Any] | None:
+        """A design's history as its pages last showed it (see
+        :func:`docgen.history.site.provide`), or ``None``."""
+        return self._read(self._file("pages", key)) if self.folder is not None else None
+
+    def put_page_memo(self, key: str, memo: dict[str, Any]) -> None:
+        """Keep a design's history under the key of everything it was made from."""
+        if self.folder is not None:
+            self._write(self._file("pages", key), memo)
+
     def put_figure(self, key: str, svg: str) -> None:
         """Store a figure drawn from content that ``key`` hashes."""
         if self.folder is not None:
