@@ -115,13 +115,13 @@ class Stepper:
     :param overrides: ``(part, value name) -> (S,)`` values per sample (rarely needed).
     :param method: ``trapezoidal`` or ``bdf2``.
     :param tolerance: the local error allowed per step on a node voltage (V).
-    :param start: the state ``z = [x, w]`` at t = 0, ``(S, M + poles)``, where a better one
-        than the operating point is known (default: the operating point).
+    :param offset: added to the operating point's state ``z = [x, w]`` at t = 0,
+        ``(S, M + poles)``, where a better start is known (default: none).
     """
 
     def __init__(self, network: SmallSignal, samples: int, stimulus: Stimulus | None,
                  method: str = "trapezoidal", tolerance: float = 1e-4,
-                 start: Array | None = None):
+                 offset: Array | None = None):
         if method not in METHODS:
             raise ValueError(f"unknown integration rule '{method}'")
         solution = network.solution
@@ -152,7 +152,9 @@ class Stepper:
         self.t = 0.0
         x0 = np.repeat(solution.x[:1], samples, axis=0)
         self.state: dict[str, Array] = {}
-        z0 = self._with_poles(x0) if start is None else np.array(start, dtype=float)
+        z0 = self._with_poles(x0)
+        if offset is not None:
+            z0 = z0 + offset
         self.history = _History(z0, np.zeros((samples, self._width)))
         self.steps = 0
         self.rejected = 0

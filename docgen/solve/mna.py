@@ -38,7 +38,13 @@ from docgen.elaborate import Circuit, Device
 from docgen.kinds import GROUND
 from docgen.solve.companions import limit_opamp, opamp_residual
 from docgen.solve.junctions import KINDS as JUNCTION_KINDS
-from docgen.solve.junctions import SMALL_BATCH, group_of, junction_groups, positions
+from docgen.solve.junctions import (
+    SMALL_BATCH,
+    add_per_entry,
+    group_of,
+    junction_groups,
+    positions,
+)
 from docgen.solve.physical import ZERO_CELSIUS
 
 Array = np.ndarray
@@ -100,10 +106,9 @@ class Problem:
 
 def has_internal_node(device: Device) -> bool:
     """True when the device's series resistance (diode) or base resistance needs a node."""
-    key = {"diode": "series_resistance", "npn": "base_resistance", "pnp": "base_resistance"}
-    name = key.get(device.kind)
-    if name is None:
+    if device.kind not in SERIES:
         return False
+    name = SERIES[device.kind][1]
     return device.values[name] > 0 or device.spreads.get(name, (0.0, 0.0))[1] > 0
 
 
@@ -186,10 +191,7 @@ class _System:
                 jacobian, (self.matrix.shape[0], count, count)).reshape(-1, count * count)
             self.rhs[:, list(idx)] -= constant
             return
-        for i, row in enumerate(idx):
-            for j, col in enumerate(idx):
-                self.matrix[:, row, col] += jacobian[..., i, j]
-            self.rhs[:, row] -= constant[..., i]
+        add_per_entry(self.matrix, self.rhs, idx, jacobian, constant)
 
 
 @lru_cache(maxsize=4096)
@@ -344,13 +346,13 @@ def pad(x: Array) -> Array:
 LINEAR_KINDS = frozenset({"resistor", "capacitor", "current", "supply", "signal", "inductor"})
 
 
-def _stamp_all(problem: Problem, devices: list[Device], system: _System, x: Array,
+def _stamp_all(problem: Problem, devices: list[Device], system: _System, x_full: Array,
                state: Mapping[str, Array], source_scale: Array | float, limiting: bool,
                stamps: Mapping[str, Callable[[_StampContext], None]] = STAMPS
                ) -> tuple[dict[str, Array], Array]:
+    """Stamp ``devices`` at the padded unknowns ``x_full`` (see :func:`pad`)."""
     samples = problem.samples
     scale = np.broadcast_to(np.asarray(source_scale, dtype=float), (samples,))
-    x_full = pad(x)
     new_state: dict[str, Array] = {}
     limited = np.zeros(samples, dtype=bool)
     for device in devices:
@@ -394,7 +396,7 @@ def _assemble_linear(problem: Problem, source_scale: Array | float,
     samples, size = problem.samples, problem.layout.size
     system = _System(samples, size)
     linear = [d for d in problem.circuit.devices if d.kind in LINEAR_KINDS]
-    zeros = np.zeros((samples, size))
+    zeros = np.zeros((samples, size + 1))
     _stamp_all(problem, linear, system, zeros, {}, source_scale, True)
     inner = [d for d in problem.circuit.devices if d.kind in SERIES]
     _stamp_all(problem, inner, system, zeros, {}, source_scale, True,
@@ -433,8 +435,9 @@ def assemble(
     system.matrix, system.rhs = base[0].copy(), base[1].copy()
     others = [d for d in problem.circuit.devices
               if d.kind not in LINEAR_KINDS and d.kind not in JUNCTION_KINDS]
-    new_state, limited = _stamp_all(problem, others, system, x, state, source_scale, limiting)
     x_full = pad(x)
+    new_state, limited = _stamp_all(problem, others, system, x_full, state, source_scale,
+                                    limiting)
     for group in junction_groups(problem):  # every device of a kind in one evaluation
         companion = group.linearise(x_full, state, limiting)
         companion.scatter(system.matrix, system.rhs)

@@ -6,7 +6,7 @@ Public API::
     run.grid            # (N, S, M) unknowns over the last period, at t = (j + 1)·T/N
     run.reached, run.change, run.periods, run.method
 
-Start: the small-signal steady state at t = 0 (:func:`small_signal_start`; the bare operating point
+Start: the small-signal steady state at t = 0 (:func:`small_signal_offset`; the bare operating point
 for a sample driven past its linear range); the sine starts at phase 0.  Each period is marched on
 a grid of N = :data:`POINTS` points (sub-steps as the error control needs), so the last period is
 sampled uniformly and coherently for the FFT.  Steady state is declared per sample when no net
@@ -40,7 +40,7 @@ MIN_PERIODS = 2
 MAX_PERIODS = 40
 STEADY_CHANGE = 1e-3
 #: a sample starts from its small-signal steady state when its linear peak on every node is
-#: within this share of the supply span (see :func:`small_signal_start`)
+#: within this share of the supply span (see :func:`small_signal_offset`)
 LINEAR_SHARE = 0.5
 #: a net whose point-to-point alternating part exceeds this share of its peak-to-peak rings
 RINGING = 1e-3
@@ -102,7 +102,7 @@ def steady_state(network: SmallSignal, amplitudes: Array, frequency: float,
         return amplitudes * math.sin(omega * t)
 
     stepper = Stepper(network, len(amplitudes), drive, method=method, tolerance=tolerance,
-                      start=small_signal_start(network, amplitudes, frequency))
+                      offset=small_signal_offset(network, amplitudes, frequency))
     nets = len(network.solution.circuit.nets)
     period = 1.0 / frequency
     previous: Array | None = None
@@ -130,9 +130,10 @@ def steady_state(network: SmallSignal, amplitudes: Array, frequency: float,
                        stepper.steps, stepper.rejected)
 
 
-def small_signal_start(network: SmallSignal, amplitudes: Array, frequency: float
-                       ) -> Array | None:
-    """The state at t = 0 of the small-signal steady state: z_op + A·Im(Ẑ) per amplitude A.
+def small_signal_offset(network: SmallSignal, amplitudes: Array, frequency: float
+                        ) -> Array | None:
+    """How far the small-signal steady state is from the operating point at t = 0: A·Im(Ẑ) per
+    amplitude A (the state there is z_op + A·Im(Ẑ)).
 
     The drive A·sin(ωt) = Im(A·e^(jωt)) gives x(t) = x_op + A·Im(Ẑ·e^(jωt)) in the linearised
     network, Ẑ its response to a unit phasor on the signal's branch.  Starting there instead of
@@ -161,8 +162,7 @@ def small_signal_start(network: SmallSignal, amplitudes: Array, frequency: float
     swing = amplitudes * np.max(np.abs(response[0, 0, :nodes]), initial=0.0)
     linear = (swing <= LINEAR_SHARE * _supply_span(network)) | all(
         d.kind in mna.LINEAR_KINDS for d in network.solution.circuit.devices)
-    operating_point = Stepper(network, 1, None).history.z[0]
-    return operating_point[None, :] + np.where(linear, amplitudes, 0.0)[:, None] * shape[None, :]
+    return np.where(linear, amplitudes, 0.0)[:, None] * shape[None, :]
 
 
 def _supply_span(network: SmallSignal) -> float:
