@@ -44,7 +44,7 @@ def provide(site: ProviderInput) -> Contribution:
         if kept is not None:
             histories[rel], figures[rel] = kept
     missing = [rel for rel in site.designs if rel not in histories]
-    found = {rel: revision_snapshots(repo, paths[rel], root) for rel in missing}
+    found = {rel: revision_snapshots(repo, paths[rel], root, work) for rel in missing}
     # A first build: new revisions solved, then every figure not cached drawn, over the cores.
     solver.prefetch([s for rel in missing for s in found[rel][2]], site.jobs)
     made = {rel: design_history(repo, paths[rel], root, solver, found=found[rel])

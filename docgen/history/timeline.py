@@ -15,7 +15,7 @@ from docgen.history.git import Repo
 from docgen.history.headline import headline_figures, verdict_counts, verdicts
 from docgen.history.revisions import Listing, Revision, list_revisions, unavailable_reason
 from docgen.history.semantic import diff_designs, text_diff
-from docgen.history.snapshot import RevisionSolver, Snapshot, snapshot
+from docgen.history.snapshot import RevisionSolver, Snapshot, Tree, snapshot
 
 Json = dict[str, Any]
 
@@ -51,13 +51,17 @@ def design_history(repo: Repo | None, rel: str, designs_root: str, solver: Revis
             "results": results, "changed_since_approval": flag}
 
 
-def revision_snapshots(repo: Repo | None, rel: str, designs_root: str
+def revision_snapshots(repo: Repo | None, rel: str, designs_root: str,
+                       work: Tree | None = None
                        ) -> tuple[Snapshot | None, Listing, list[Snapshot]]:
-    """The design now (work tree), its revisions, and a snapshot of each (nothing solved)."""
+    """The design now (work tree), its revisions, and a snapshot of each (nothing solved).
+
+    :param work: the work tree already read (a build reads it once for all its designs).
+    """
     reason = unavailable_reason(repo)
     if reason is not None or repo is None:
         return None, Listing(rel, unavailable=reason), []
-    current = snapshot(repo, None, rel, designs_root)
+    current = work.snapshot(rel) if work is not None else snapshot(repo, None, rel, designs_root)
     listing = list_revisions(repo, rel, current.uses)
     repo.prefetch_folder(designs_root, ".md")  # every design's revisions: a few git calls
     snaps = [snapshot(repo, r.commit.sha, r.path, designs_root) for r in listing.revisions]
