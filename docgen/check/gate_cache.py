@@ -11,13 +11,12 @@ file that cannot be read counts as missing.
 
 from __future__ import annotations
 
-import os
 import pickle
-import tempfile
 from collections.abc import Mapping
 from pathlib import Path
 from typing import Any
 
+from docgen.atomic import write_atomically
 from docgen.cachekey import code_fingerprint, design_key
 from docgen.design import Design, ModelDef
 
@@ -49,16 +48,9 @@ class GateCache:
         """Store ``result`` under ``key`` (a temporary file renamed into place)."""
         if self.folder is None:
             return
+        data = pickle.dumps({"key": key, "result": result})
         try:
             self.folder.mkdir(parents=True, exist_ok=True)
-            descriptor, temporary = tempfile.mkstemp(dir=self.folder, prefix=".tmp-",
-                                                     suffix=".pickle")
+            write_atomically(self.folder / f"{key}.pickle", data)
         except OSError:
             return  # a read-only checkout still gets its check, just not cached
-        try:
-            with os.fdopen(descriptor, "wb") as handle:
-                pickle.dump({"key": key, "result": result}, handle)
-            os.replace(temporary, self.folder / f"{key}.pickle")
-        except BaseException:
-            Path(temporary).unlink(missing_ok=True)
-            raise

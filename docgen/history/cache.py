@@ -14,10 +14,10 @@ A folder of ``None`` keeps results in memory only (the site build with caching t
 from __future__ import annotations
 
 import json
-import os
-import tempfile
 from pathlib import Path
 from typing import Any
+
+from docgen.atomic import write_atomically
 
 CACHE_DIR = ".docgen-cache"
 _IGNORE = "# written by docgen: everything here is a cache, safe to delete\n*\n"
@@ -105,14 +105,7 @@ class ResultsCache:
         path.parent.mkdir(parents=True, exist_ok=True)
         _ensure_ignored(self.folder.parent if self.folder else path.parent)
         text = json.dumps(data, sort_keys=True, ensure_ascii=False, allow_nan=True)
-        fd, tmp = tempfile.mkstemp(dir=path.parent, prefix=".tmp-", suffix=".json")
-        try:
-            with os.fdopen(fd, "w", encoding="utf-8") as handle:
-                handle.write(text)
-            os.replace(tmp, path)
-        except BaseException:
-            Path(tmp).unlink(missing_ok=True)
-            raise
+        write_atomically(path, text.encode("utf-8"))
 
 
 def _ensure_ignored(folder: Path) -> None:

@@ -12,10 +12,10 @@ never leaves a half-written bundle behind.
 from __future__ import annotations
 
 import json
-import os
-import tempfile
 from pathlib import Path
 from typing import Any
+
+from docgen.atomic import write_atomically
 
 Bundle = dict[str, Any]
 
@@ -43,11 +43,5 @@ class BundleCache:
         if self.folder is None:
             return
         self.folder.mkdir(parents=True, exist_ok=True)
-        descriptor, temporary = tempfile.mkstemp(dir=self.folder, prefix=".tmp-", suffix=".json")
-        try:
-            with os.fdopen(descriptor, "w", encoding="utf-8") as handle:
-                json.dump({**bundle, "key": key}, handle, sort_keys=True, ensure_ascii=False)
-            os.replace(temporary, self.folder / f"{key}.json")
-        except BaseException:
-            Path(temporary).unlink(missing_ok=True)
-            raise
+        text = json.dumps({**bundle, "key": key}, sort_keys=True, ensure_ascii=False)
+        write_atomically(self.folder / f"{key}.json", text.encode("utf-8"))
